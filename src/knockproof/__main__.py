@@ -1,0 +1,3 @@
+from knockproof.cli.app import main
+
+main()
