@@ -10,7 +10,7 @@ import sys
 
 import typer
 
-from knockproof.cli import catalog_cmd, check, new, schema
+from knockproof.cli import catalog_cmd, check, estimate, new, schema
 
 app = typer.Typer(
     name="knockproof",
@@ -34,6 +34,7 @@ def _root(
 
 
 app.command("check")(check.command)
+app.command("estimate")(estimate.command)
 app.command("catalog")(catalog_cmd.command)
 app.command("schema")(schema.command)
 app.command("new")(new.command)

@@ -11,6 +11,13 @@ def command(
     file: Path | None = typer.Argument(None, help="Building file (TOML).", show_default=False),
     example: bool = typer.Option(False, "--example", help="Check the bundled example building."),
     format: str = typer.Option("text", "--format", "-f", help="text, json or markdown."),
+    simultaneous: bool = typer.Option(
+        False, "--simultaneous", help="Also close valves of one kind on one branch together."
+    ),
+    events: int = typer.Option(12, "--events", help="Events shown in the text report (0: all)."),
+    summary_only: bool = typer.Option(
+        False, "--summary", help="Only load the building and summarise the tree (no physics)."
+    ),
 ) -> int:
     """Check a building's water-supply tree for water hammer."""
     from knockproof.errors import UsageError
@@ -19,20 +26,43 @@ def command(
         raise UsageError(f"--format: expected text, json or markdown, found '{format}'")
     if example == (file is not None):
         raise UsageError("give a building file or --example (one of them)")
+    if events < 0:
+        raise UsageError("--events: expected 0 or more")
+    from knockproof.analysis.run import analyze_tree
     from knockproof.analysis.summary import summarize
-    from knockproof.cli.output import out
+    from knockproof.cli.output import out, write_text
     from knockproof.model.loader import load_building
     from knockproof.network import build_tree
     from knockproof.report.cautions import CAUTION
-    from knockproof.report.summary_text import render_summary
 
     path = example_path() if example else file
     assert path is not None
     building = load_building(path)
     tree = build_tree(building)
-    summary = summarize(tree)
     console = out()
-    render_summary(console, summary, building.unit_system)
+    if summary_only:
+        from knockproof.report.summary_text import render_summary
+
+        render_summary(console, summarize(tree), building.unit_system)
+        console.print(CAUTION)
+        return 0
+    analysis = analyze_tree(tree, simultaneous=simultaneous)
+    if format == "json":
+        from knockproof.report.json_out import analysis_to_json, dumps
+
+        write_text(dumps(analysis_to_json(analysis)))
+        return 0
+    if format == "markdown":
+        from knockproof.report.markdown import analysis_markdown
+
+        write_text(analysis_markdown(analysis))
+        return 0
+    from knockproof.report import terminal
+
+    terminal.render_headline(console, analysis)
+    terminal.render_events(console, analysis, events)
+    terminal.render_pipes(console, analysis)
+    terminal.render_assumptions(console, analysis)
     console.print(CAUTION)
     return 0
 

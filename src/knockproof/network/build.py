@@ -87,7 +87,7 @@ def build_tree(building: Building) -> nx.DiGraph:
                 p = replace(p, upstream=u, downstream=v, rise_m=-p.rise_m)
             tree.add_node(v, elevation_m=tree.nodes[u]["elevation_m"] + p.rise_m, side=s.side,
                           root=s.node, supply=None, fixtures=[], arrestors=[], devices=[],
-                          label=building.node_labels.get(v, p.label),
+                          label=building.node_labels.get(v, p.label) or tree.nodes[u]["label"],
                           depth=tree.nodes[u]["depth"] + 1)
             tree.add_edge(u, v, pipe=p, id=p.id)
     for s in building.supplies:

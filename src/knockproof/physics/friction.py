@@ -24,9 +24,7 @@ TURBULENT_LIMIT: float = 4000.0
 _LN10 = math.log(10.0)
 
 
-def reynolds(
-    velocity_m_per_s: float, diameter_m: float, density: float, viscosity: float
-) -> float:
+def reynolds(velocity_m_per_s: float, diameter_m: float, density: float, viscosity: float) -> float:
     """Reynolds number of pipe flow.
 
     Re = rho |V| D / mu   [2]
@@ -149,6 +147,9 @@ def head_loss_m(
 
     h_f = f (L / D) V |V| / (2 g),  V = Q / (pi D**2 / 4),  f = friction_factor(Re, eps/D)   [2]
 
+    For Re <= 2000 this is evaluated in the equivalent Hagen-Poiseuille form
+    h_f = 32 mu L V / (rho g D**2) [2], which stays finite as the flow tends to zero.
+
     Parameters
     ----------
     flow_m3_per_s : float
@@ -181,5 +182,8 @@ def head_loss_m(
         raise ValueError(f"diameter must be positive; got {diameter_m!r} m")
     velocity = flow_m3_per_s / (math.pi * diameter_m * diameter_m / 4.0)
     re = reynolds(velocity, diameter_m, density, viscosity)
+    if re <= LAMINAR_LIMIT:
+        # f = 64/Re written out (Hagen-Poiseuille): no division by a vanishing Re.
+        return 32.0 * viscosity * length_m * velocity / (density * g * diameter_m * diameter_m)
     f = friction_factor(re, roughness_m / diameter_m)
     return f * length_m / diameter_m * velocity * abs(velocity) / (2.0 * g)

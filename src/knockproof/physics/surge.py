@@ -264,8 +264,7 @@ def junction_transmission(admittances: Sequence[float], incoming: int) -> float:
             raise ValueError(f"admittance {i} must be positive; got {y!r}")
     if not 0 <= incoming < len(ys):
         raise ValueError(
-            f"incoming must index one of the {len(ys)} pipes (0 to {len(ys) - 1}); "
-            f"got {incoming!r}"
+            f"incoming must index one of the {len(ys)} pipes (0 to {len(ys) - 1}); got {incoming!r}"
         )
     return 2.0 * ys[incoming] / math.fsum(ys)
 

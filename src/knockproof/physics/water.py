@@ -36,8 +36,6 @@ from __future__ import annotations
 import math
 from functools import lru_cache
 
-from iapws import IAPWS97
-
 from knockproof.physics.constants import ZERO_CELSIUS_K
 
 #: Lowest temperature accepted [C].
@@ -58,11 +56,15 @@ def _check_temperature(temperature_c: float) -> None:
 
 @lru_cache(maxsize=1024)
 def _saturation_pressure(t_key: float) -> float:
+    from iapws import IAPWS97  # deferred: importing iapws takes about 0.5 s
+
     return float(IAPWS97(T=t_key + ZERO_CELSIUS_K, x=0.0).P) * 1e6
 
 
 @lru_cache(maxsize=8192)
 def _liquid_state(t_key: float, p_key: float) -> tuple[float, float, float]:
+    from iapws import IAPWS97  # deferred: importing iapws takes about 0.5 s
+
     state = IAPWS97(T=t_key + ZERO_CELSIUS_K, P=p_key / 1e6)
     if state.region != 1:
         raise ValueError(

@@ -143,8 +143,6 @@ def wave_speed(
         raise ValueError(f"density must be positive; got {density_kg_m3!r} kg/m3")
     if not elastic_modulus_pa > 0.0:
         raise ValueError(f"elastic modulus must be positive; got {elastic_modulus_pa!r} Pa")
-    c1 = restraint_factor(
-        poisson_ratio, restraint, inside_diameter_m, wall_m, thin_wall=thin_wall
-    )
+    c1 = restraint_factor(poisson_ratio, restraint, inside_diameter_m, wall_m, thin_wall=thin_wall)
     stiffness_ratio = bulk_modulus_pa / elastic_modulus_pa * (inside_diameter_m / wall_m) * c1
     return math.sqrt(bulk_modulus_pa / density_kg_m3 / (1.0 + stiffness_ratio))

@@ -1,0 +1,32 @@
+"""Markdown of a check: the same content as the terminal report, for pasting into documents."""
+
+from __future__ import annotations
+
+from knockproof.model.units import to_display, unit_label
+from knockproof.report.cautions import CAUTION
+from knockproof.results import Analysis
+
+
+def _cell(text: str) -> str:
+    return text.replace("|", "\\|").replace("\n", " ")
+
+
+def analysis_markdown(a: Analysis, extra_sections: list[str] | None = None) -> str:
+    u = a.unit_system
+    pu = unit_label("pressure", u)
+    lines = [f"# Water-hammer check: {_cell(a.building_name)}", "", f"> {CAUTION}", ""]
+    lines += extra_sections or []
+    lines += ["## Closure events", "",
+              f"| valve | where | velocity {unit_label('velocity', u)} | closure ms | 2L/a ms "
+              f"| closure | surge {pu} | peak {pu} |",
+              "|---|---|---:|---:|---:|---|---:|---:|"]
+    for e in sorted(a.events, key=lambda e: (-e.peak_pressure_pa, e.id)):
+        lines.append(
+            f"| {_cell(e.fixture)}:{e.side} | {_cell(e.label or e.node)} | "
+            f"{to_display(e.velocity_m_per_s, 'velocity', u):.1f} | {e.closure_time_s * 1000:.0f} | "
+            f"{e.critical_time_s * 1000:.1f} | {e.closure} | "
+            f"{to_display(e.surge_pa, 'pressure', u):.0f} | "
+            f"{to_display(e.peak_pressure_pa, 'pressure', u):.0f} |"
+        )
+    lines += ["", "## Assumptions", ""] + [f"- {x}" for x in a.assumptions] + [""]
+    return "\n".join(lines)

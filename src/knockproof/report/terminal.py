@@ -1,0 +1,80 @@
+"""Terminal rendering of the closed-form analysis (rich), in the user's unit system."""
+
+from __future__ import annotations
+
+from rich.console import Console
+from rich.markup import escape
+from rich.table import Table
+
+from knockproof.model.units import fmt, to_display, unit_label
+from knockproof.results import Analysis
+
+
+def render_events(console: Console, a: Analysis, limit: int = 12) -> None:
+    """The worst closure events by peak pressure."""
+    u = a.unit_system
+    events = sorted(a.events, key=lambda e: (-e.peak_pressure_pa, e.id))
+    shown = events if limit <= 0 else events[:limit]
+    p_unit = unit_label("pressure", u)
+    t = Table(
+        title=f"Worst closure events ({len(shown)} of {len(events)}, by peak pressure)",
+        title_justify="left", show_edge=False, pad_edge=False,
+    )
+    t.add_column("valve")
+    t.add_column("where", overflow="fold", max_width=22)
+    t.add_column(f"V {unit_label('velocity', u)}", justify="right")
+    t.add_column("close / 2L/a ms", justify="right")
+    t.add_column(f"surge {p_unit}", justify="right")
+    t.add_column(f"peak {p_unit}", justify="right")
+    for e in shown:
+        peak = to_display(e.peak_pressure_pa, "pressure", u)
+        sim = e.simulated_peak_pressure_pa
+        peak_text = f"{peak:.0f}" if sim is None else (
+            f"{peak:.0f} ({to_display(sim, 'pressure', u):.0f} sim)")
+        t.add_row(
+            escape(f"{e.fixture}:{e.side}"),
+            escape(e.label or e.node),
+            f"{to_display(e.velocity_m_per_s, 'velocity', u):.1f}",
+            f"{e.closure_time_s * 1000:.0f} / {e.critical_time_s * 1000:.0f}"
+            + (" R" if e.closure == "rapid" else ""),
+            f"{to_display(e.surge_pa, 'pressure', u):.0f}",
+            peak_text,
+        )
+    console.print(t)
+    console.print("R = rapid closure (closure time at or under 2L/a): full Joukowsky surge.")
+
+
+def render_pipes(console: Console, a: Analysis, limit: int = 8) -> None:
+    """The fastest pipes at design flow, with wave speeds."""
+    u = a.unit_system
+    pipes = sorted(a.pipes, key=lambda p: (-p.velocity_m_per_s, p.id))[:limit]
+    t = Table(title=f"Fastest pipes at design flow ({len(pipes)} of {len(a.pipes)})",
+              title_justify="left", show_edge=False, pad_edge=False)
+    for col, just in (("pipe", "left"), ("material size", "left"), ("side", "left"),
+                      (f"flow {unit_label('flow', u)}", "right"),
+                      (f"V {unit_label('velocity', u)}", "right"),
+                      (f"a {unit_label('wave_speed', u)}", "right")):
+        t.add_column(col, justify=just)  # type: ignore[arg-type]
+    for p in pipes:
+        t.add_row(escape(p.id), f"{p.material} {p.nominal_size}", p.side,
+                  f"{to_display(p.design_flow_m3_per_s, 'flow', u):.1f}",
+                  f"{to_display(p.velocity_m_per_s, 'velocity', u):.1f}",
+                  f"{to_display(p.wave_speed_m_per_s, 'wave_speed', u):.0f}")
+    console.print(t)
+
+
+def render_assumptions(console: Console, a: Analysis) -> None:
+    console.print("[bold]Assumptions[/]")
+    for line in a.assumptions:
+        console.print(f"- {escape(line)}")
+
+
+def render_headline(console: Console, a: Analysis) -> None:
+    u = a.unit_system
+    worst = max(a.events, key=lambda e: e.peak_pressure_pa, default=None)
+    console.print(f"[bold]{escape(a.building_name)}[/]  ({escape(a.source)})")
+    line = f"{len(a.pipes)} pipes, {len(a.events)} closure events"
+    if worst is not None:
+        line += (f"; highest estimated peak {fmt(worst.peak_pressure_pa, 'pressure', u, 0)} at "
+                 f"{escape(worst.fixture)}:{worst.side}")
+    console.print(line)

@@ -1,0 +1,163 @@
+"""The frozen result types every stage hands on. SI inside; the unit is in each field name.
+
+Pressures are gauge [Pa] unless the name says ``_abs``. These types carry no behaviour beyond
+read-only helpers; reports read them and never compute physics.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Literal
+
+Closure = Literal["rapid", "slow"]
+
+
+@dataclass(frozen=True)
+class PipeResult:
+    """Steady flow and wave speed of one pipe at design flow.
+
+    Attributes
+    ----------
+    design_flow_m3_per_s : float
+        Demand from the fixture units downstream (IPC Appendix E) [m^3/s].
+    velocity_m_per_s : float
+        Mean velocity at design flow [m/s].
+    wave_speed_m_per_s : float
+        Pressure-wave speed (Korteweg with restraint factor) [m/s].
+    head_loss_m : float
+        Friction loss over length plus fittings allowance at design flow [m of water].
+    """
+
+    id: str
+    upstream: str
+    downstream: str
+    side: str
+    material: str
+    nominal_size: str
+    length_m: float
+    inside_diameter_m: float
+    temperature_c: float
+    fixture_units: float
+    flush_valve_demand: bool
+    design_flow_m3_per_s: float
+    velocity_m_per_s: float
+    reynolds: float
+    friction_factor: float
+    head_loss_m: float
+    wave_speed_m_per_s: float
+    pressure_rating_pa: float
+    label: str = ""
+
+
+@dataclass(frozen=True)
+class NodeResult:
+    """Pressures at one node: static (no flow) and residual (flowing at design flow), gauge [Pa]."""
+
+    id: str
+    side: str
+    elevation_m: float
+    static_pressure_pa: float
+    residual_pressure_pa: float
+    label: str = ""
+
+
+@dataclass(frozen=True)
+class PathPoint:
+    """The surge at one node on the path from a closing valve back to its supply.
+
+    ``distance_m`` is measured along the pipes from the valve; ``surge_pa`` is the closed-form pressure
+    rise reaching the node (transmitted through the junctions passed); ``peak_pressure_pa`` adds the
+    node's static pressure.
+    """
+
+    node: str
+    distance_m: float
+    velocity_change_m_per_s: float
+    surge_pa: float
+    static_pressure_pa: float
+    peak_pressure_pa: float
+
+
+@dataclass(frozen=True)
+class EventResult:
+    """One quick-closing valve closing (or a group closing together): the closed-form estimate.
+
+    Attributes
+    ----------
+    id : str
+        ``"<fixture>:<side>"`` (or ``"group:<node>:<side>:<kind>"`` for simultaneous closures).
+    velocity_m_per_s : float
+        Velocity stopped in the pipe that feeds the valve [m/s].
+    wave_speed_m_per_s : float
+        Wave speed of that pipe [m/s].
+    reflection_length_m : float
+        Distance from the valve to the first strong reflection [m].
+    reflection_node : str
+        Where that reflection happens (a supply, or a tee where the area opens up).
+    critical_time_s : float
+        2 L / a: the round-trip time of the wave over ``reflection_length_m`` [s].
+    closure : "rapid" or "slow"
+        Rapid when closure_time_s <= critical_time_s.
+    surge_pa : float
+        Pressure rise at the valve (Joukowsky if rapid, Michaud otherwise) [Pa].
+    peak_pressure_pa : float
+        Static pressure at the valve plus the surge (gauge) [Pa].
+    """
+
+    id: str
+    fixtures: tuple[str, ...]
+    kind: str
+    side: str
+    node: str
+    label: str
+    valve: str
+    closure_time_s: float
+    flow_m3_per_s: float
+    velocity_m_per_s: float
+    wave_speed_m_per_s: float
+    reflection_length_m: float
+    reflection_node: str
+    critical_time_s: float
+    closure: Closure
+    surge_pa: float
+    static_pressure_pa: float
+    residual_pressure_pa: float
+    peak_pressure_pa: float
+    path: tuple[PathPoint, ...]
+    simultaneous: bool = False
+    simulated_peak_pressure_pa: float | None = None
+    simulated_min_pressure_pa: float | None = None
+    cavity: bool | None = None
+    simulated_peak_with_arrestors_pa: float | None = None
+
+    @property
+    def fixture(self) -> str:
+        return self.fixtures[0] if len(self.fixtures) == 1 else ",".join(self.fixtures)
+
+
+@dataclass(frozen=True)
+class Analysis:
+    """Everything the closed-form screen computed for one building."""
+
+    building_name: str
+    source: str
+    unit_system: str
+    density_cold_kg_m3: float
+    density_hot_kg_m3: float
+    pipes: tuple[PipeResult, ...]
+    nodes: tuple[NodeResult, ...]
+    events: tuple[EventResult, ...]
+    assumptions: tuple[str, ...] = ()
+    timings_s: dict[str, float] = field(default_factory=dict)
+
+    def pipe(self, pipe_id: str) -> PipeResult:
+        for p in self.pipes:
+            if p.id == pipe_id:
+                return p
+        raise KeyError(pipe_id)
+
+    def node(self, node_id: str) -> NodeResult:
+        for n in self.nodes:
+            if n.id == node_id:
+                return n
+        raise KeyError(node_id)
