@@ -18,7 +18,7 @@ ASSUMPTIONS = (
     "valve curve where a flush valve is downstream, never less than the largest single fixture flow.",
     "Each closing valve stops its fixture's rated flow; the rest of the demand flows on.",
     "Wave speed by Korteweg's formula with the pipe's restraint factor; water density and adiabatic "
-    "bulk modulus from IAPWS-95 at the side's temperature.",
+    "bulk modulus from IAPWS-97 (within 0.4 % of IAPWS-95) at the side's temperature.",
     f"A junction reflecting {STRONG_REFLECTION:.0%} or more of an arriving wave (or the supply) bounds "
     "the reflection length used for the critical time 2L/a.",
     "Rapid closure (closure time <= 2L/a): Joukowsky; slower: Michaud's estimate, never above "

@@ -291,7 +291,7 @@ def _interior_pass(
                 return
             prev_v = v_old
             hv = hv0[p] + dhv[p] * (k - o)
-            if cav_on and (v_old > 0.0 or h < hv):
+            if cav_on and (v_old > 0.0 or h < hv - 1e-6):
                 qu = (cp - hv) / b
                 qd = (hv - cm) / b
                 old_rate = (Qd[k] - Qu[k]) if v_old > 0.0 else 0.0

@@ -224,8 +224,6 @@ def simulate(
     acc = np.zeros(4)
     flow0 = np.asarray(network.pipe_initial_flow_m3_per_s, float)
     supply0 = 0.0
-    for r in network.reservoirs:
-        pass
     reservoir_groups = {int(lay.node_group[r.node]) for r in network.reservoirs}
     for i, p in enumerate(lay.pipe_index):
         if int(lay.node_group[network.pipe_upstream[p]]) in reservoir_groups:
