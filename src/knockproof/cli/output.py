@@ -42,4 +42,4 @@ def write_text(text: str) -> None:
 def error(message: str) -> None:
     from rich.markup import escape
 
-    err().print(f"[bold red]error:[/] {escape(message)}")
+    err().print(f"[bold red]error:[/] {escape(message)}", soft_wrap=True)

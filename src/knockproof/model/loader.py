@@ -7,6 +7,7 @@ each naming the file, the item, the field and (where it can be found) the line.
 from __future__ import annotations
 
 import math
+import re
 import tomllib
 from dataclasses import replace
 from pathlib import Path
@@ -85,6 +86,9 @@ def read_document(path: str | Path) -> tuple[BuildingFile, LineIndex]:
     except tomllib.TOMLDecodeError as e:
         line = getattr(e, "lineno", None)
         msg = str(e)
+        m = re.search(r"\(at line (\d+), column \d+\)", msg)
+        if line is None and m:
+            line = int(m.group(1))
         raise InputError.single(file, "file", "", f"is not valid TOML: {msg}", line) from None
     except RecursionError:
         raise InputError.single(file, "file", "", "nests tables or arrays too deeply") from None
@@ -330,7 +334,7 @@ def load_building(path: str | Path) -> Building:
     _check_unique(c, "supply", [(s.node, s.line) for s in supplies])
 
     if c.problems:
-        raise InputError(c.problems)
+        raise InputError(_fold_repeats(c.problems))
     node_labels: dict[str, str] = {}
     for p in pipes:
         if p.label:
@@ -498,3 +502,22 @@ def _check_unique(c: _Collector, kind: str, ids: list[tuple[str, int | None]]) -
                                       else "node", f"is used twice{at}", line))
         else:
             first[ident] = line
+
+
+def _fold_repeats(problems: list[Problem]) -> list[Problem]:
+    """One message per template line: a typo in a unit template placed 230 times is said once."""
+    out: list[Problem] = []
+    seen: dict[tuple[int | None, str, str], int] = {}
+    counts: dict[int, int] = {}
+    for p in problems:
+        key = (p.line, p.field, p.message)
+        if p.line is not None and "(template" in p.item and key in seen:
+            counts[seen[key]] = counts.get(seen[key], 0) + 1
+            continue
+        seen[key] = len(out)
+        out.append(p)
+    for i, n in counts.items():
+        p = out[i]
+        out[i] = Problem(p.file, p.item, p.field, f"{p.message} (and {n} more placements of the "
+                         "same template line)", p.line)
+    return out

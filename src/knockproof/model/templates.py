@@ -28,7 +28,7 @@ MAX_RANGE_VALUES = 10_000
 #: Deepest nesting of placements.
 MAX_DEPTH = 16
 
-_FIELD = re.compile(r"\{([A-Za-z_][A-Za-z0-9_-]*)\s*(?:([+-])\s*(\d+))?\}")
+_FIELD = re.compile(r"\{([A-Za-z_][A-Za-z0-9_]*)\s*(?:([+-])\s*(\d+))?\}")
 
 
 class TemplateProblem(Exception):
@@ -115,9 +115,11 @@ def fill(text: str, variables: dict[str, str | int], where: str, field: str) -> 
 
 def _fill_model(model: BaseModel, variables: dict[str, str | int], where: str) -> BaseModel:
     updates: dict[str, Any] = {}
+    fields = type(model).model_fields
     for name, value in model:
         if isinstance(value, str) and "{" in value:
-            updates[name] = fill(value, variables, where, name)
+            written = fields[name].alias or name
+            updates[name] = fill(value, variables, where, written)
     return model.model_copy(update=updates) if updates else model
 
 
@@ -140,8 +142,14 @@ def _count(
         raise TemplateProblem(where, "template", f"unknown template '{name}' (known: {known})")
     t = templates[name]
     total = len(t.pipe) + len(t.fixture) + len(t.arrestor) + len(t.device)
-    for place in t.place:
-        total += _place_count(place, templates, memo, (*stack, name), f'template "{name}"')
+    for j, place in enumerate(t.place):
+        try:
+            total += _place_count(place, templates, memo, (*stack, name),
+                                  f'place #{j + 1} of template "{name}"')
+        except TemplateProblem as e:
+            if e.line_key is None:
+                e.line_key = ("template", list(templates).index(name), "place", j)
+            raise
         if total > MAX_EXPANDED_ITEMS:
             break
     memo[name] = total

@@ -54,7 +54,7 @@ def build_tree(building: Building) -> nx.DiGraph:
             problems.append(Problem(file, f'pipe "{first.id}"', "to",
                                     "closes a loop through pipes " + ", ".join(ids)
                                     + "; a supply tree must have no loops", first.line))
-        roots = [n for n in comp if n in supplies]
+        roots = [s.node for s in building.supplies if s.node in comp]
         if not roots:
             sample = sorted(comp)[:5]
             pipe = next(iter(sub.edges(data="pipe")))[2]

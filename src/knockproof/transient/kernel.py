@@ -25,7 +25,9 @@ Vapour cavities: the discrete vapour-cavity model (DVCM; Wylie & Streeter 1993, 
 sec. 11.4) at interior sections and at nodes without an arrestor. When the head would fall below the
 vapour head the head is held at it, the two sides carry different flows and the cavity volume grows by
 ``dt [psi (Q_out - Q_in) + (1 - psi)(Q_out - Q_in)_old]``; when the volume returns to zero the cavity
-collapses and the section is computed as liquid again. ``psi = 1`` (the caller's choice; the value used
+collapses. In the step where it closes, the head is set so that the step's net inflow fills exactly the
+remaining volume (the DVCM continuity equation with the new volume set to zero), so no liquid is made or
+lost at a collapse; from the next step the section is liquid again. ``psi = 1`` (the caller's choice; the value used
 in practice, from memory).
 
 State arrays are flat over all sections (pipes end to end); old and new arrays swap every step.
@@ -57,6 +59,9 @@ STATUS_ARRESTOR_NEWTON = 3
 ACC_SUPPLY = 0
 ACC_MAX_CAVITY = 1
 ACC_SUPPLY_VOLUME = 2
+
+JUST_CLOSED = -1.0
+"""Cavity-volume marker of a section whose cavity closed this step: liquid, but its two flows differ."""
 
 
 @njit(cache=True)
@@ -172,7 +177,7 @@ def _node_pass(
             b = eb[e]
             r = er[e]
             if esign[e] > 0:
-                q = Qd[nb] if Vc[nb] > 0.0 else Qu[nb]
+                q = Qd[nb] if Vc[nb] != 0.0 else Qu[nb]
                 c = H[nb] + q * (b - r * abs(q))
             else:
                 q = Qu[nb]
@@ -222,7 +227,9 @@ def _node_pass(
                     if vol > acc[ACC_MAX_CAVITY]:
                         acc[ACC_MAX_CAVITY] = vol
                 else:
-                    if vold > 0.0:
+                    if vold > 0.0:  # collapse: the step's net inflow closes the cavity exactly
+                        rate = -(vold + dt * (1.0 - psi) * old_rate) / (psi * dt)
+                        head, _ = _valve_head(cs + bs * rate, bs, v0, v1, cvb, vz)
                         stats[ST_COLLAPSES] += 1
                         if stats[ST_FIRST_COLLAPSE] < 0:
                             stats[ST_FIRST_COLLAPSE] = step
@@ -280,7 +287,7 @@ def _interior_pass(
         prev_v = 0.0
         for k in range(o + 1, o + n):
             v_old = Vc[k]
-            qa = Qd[k - 1] if prev_v > 0.0 else Qu[k - 1]
+            qa = Qd[k - 1] if prev_v != 0.0 else Qu[k - 1]
             qb = Qu[k + 1]
             cp = H[k - 1] + qa * (b - r * abs(qa))
             cm = H[k + 1] - qb * (b - r * abs(qb))
@@ -290,6 +297,8 @@ def _interior_pass(
                 stats[ST_WHERE] = p
                 return
             prev_v = v_old
+            if v_old < 0.0:
+                v_old = 0.0
             hv = hv0[p] + dhv[p] * (k - o)
             if cav_on and (v_old > 0.0 or h < hv - 1e-6):
                 qu = (cp - hv) / b
@@ -310,10 +319,18 @@ def _interior_pass(
                     if vol > acc[ACC_MAX_CAVITY]:
                         acc[ACC_MAX_CAVITY] = vol
                     continue
-                if v_old > 0.0:
+                if v_old > 0.0:  # collapse: the step's net inflow closes the cavity exactly
+                    rate = -(v_old + dt * (1.0 - psi) * old_rate) / (psi * dt)
+                    h = 0.5 * (cp + cm + b * rate)
+                    Hn[k] = h
+                    Qun[k] = (cp - h) / b
+                    Qdn[k] = (h - cm) / b
+                    Vc[k] = JUST_CLOSED
+                    count += 1
                     stats[ST_COLLAPSES] += 1
                     if stats[ST_FIRST_COLLAPSE] < 0:
                         stats[ST_FIRST_COLLAPSE] = step
+                    continue
             Vc[k] = 0.0
             Hn[k] = h
             Qun[k] = (cp - cm) * inv2b
@@ -401,7 +418,8 @@ def run(
         Qd, Qdn = Qdn, Qd
     total_cavity = 0.0
     for k in range(len(Vc)):
-        total_cavity += Vc[k]
+        if Vc[k] > 0.0:
+            total_cavity += Vc[k]
     for gi in range(n_groups):
         total_cavity += gvol[gi]
     return H, Qu, avol, total_cavity

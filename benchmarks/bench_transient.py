@@ -1,0 +1,152 @@
+"""Benchmark of the transient kernel on a synthetic tower of about 3000 pipes.
+
+Run: ``python benchmarks/bench_transient.py`` (prints figures; asserts nothing).
+
+It prints
+* the kernel's node updates per second (computing sections x steps / kernel seconds),
+* in the same run, a numpy streaming triad ``a = b + s*c`` over arrays as long as the flat section
+  arrays (elements per second), and the ratio of the two (target >= 0.5),
+* the time of the first call with an empty numba cache (compile), of the first call in a new process
+  with a warm cache (load), and of a call once loaded,
+* the peak resident memory (``resource.getrusage``).
+
+The tower (an invented scenario): a copper riser through ``FLOORS`` floors; on each floor a branch to a
+corridor main serving ``UNITS`` dwellings; in each dwelling a unit pipe, a bathroom header and seven
+fixture runs each ending in a 0.3 m stub. One washer solenoid on the top floor closes in 20 ms while
+the other fixtures are shut.
+"""
+
+from __future__ import annotations
+
+import os
+import resource
+import subprocess
+import sys
+import tempfile
+import time
+
+import numpy as np
+
+FLOORS = 48
+UNITS = 4
+DURATION_S = 0.5
+
+# wave speeds of water in type L copper, rounded (Korteweg with E = 117 GPa; engineering values)
+SIZES = {"2": (0.0513, 1280.0), "1-1/4": (0.0320, 1300.0), "1": (0.0258, 1310.0),
+         "3/4": (0.0199, 1320.0), "1/2": (0.0138, 1340.0)}  # fmt: skip
+FIXTURES = (  # name, run length [m], size
+    ("kitchen", 4.0, "1/2"), ("dishwasher", 1.5, "1/2"), ("lavatory", 1.2, "1/2"),
+    ("toilet", 1.8, "1/2"), ("shower", 2.5, "1/2"), ("washer", 6.0, "1/2"), ("hosebibb", 3.0, "1/2"),
+)  # fmt: skip
+
+
+def tower():
+    """The tower as a steady :class:`TransientNetwork` (see the module docstring)."""
+    from knockproof.transient.build import OutletSpec, PipeSpec, tree_network
+
+    pipes: list[PipeSpec] = []
+    elevations: dict[str, float] = {"street": 0.0}
+
+    def add(name, up, down, length, size, rise=0.0):
+        d, a = SIZES[size]
+        pipes.append(PipeSpec(name, up, down, length, d, a, 0.022))
+        elevations[down] = elevations[up] + rise
+
+    below = "street"
+    for f in range(FLOORS):
+        riser = f"R{f}"
+        add(f"riser{f}", below, riser, 3.2, "2", rise=3.2)
+        add(f"floor{f}", riser, f"F{f}", 4.0, "1-1/4")
+        corridor = f"F{f}"
+        for u in range(UNITS):
+            node = f"C{f}.{u}"
+            add(f"corridor{f}.{u}", corridor, node, 6.0, "1")
+            add(f"unit{f}.{u}", node, f"U{f}.{u}", 3.0, "3/4")
+            add(f"bath{f}.{u}", f"U{f}.{u}", f"B{f}.{u}", 5.0, "3/4")
+            for k, (fixture, length, size) in enumerate(FIXTURES):
+                start = f"U{f}.{u}" if k < 2 else f"B{f}.{u}"
+                run_end = f"{fixture}{f}.{u}"
+                add(f"{fixture}-run{f}.{u}", start, run_end, length, size)
+                add(f"{fixture}-stub{f}.{u}", run_end, f"{fixture}-valve{f}.{u}", 0.3, size, 0.3)
+            corridor = node
+        below = riser
+    event = f"washer-valve{FLOORS - 1}.0"
+    outlets = [OutletSpec(event, 0.25e-3, 0.02, "solenoid")]
+    supply_head = FLOORS * 3.2 + 40.0  # a booster: about 40 m of pressure head at the top floor
+    return tree_network(pipes, "street", supply_head, elevations, outlets), event
+
+
+def triad_elements_per_second(n: int, repeats: int = 200) -> float:
+    """Best-of-``repeats`` numpy triad ``a = b + s*c`` on float64 arrays of length ``n``."""
+    b = np.random.default_rng(1).random(n)
+    c = np.random.default_rng(2).random(n)
+    a = np.empty(n)
+    s = 1.0001
+    best = np.inf
+    for _ in range(repeats):
+        t0 = time.perf_counter()
+        np.multiply(c, s, out=a)
+        np.add(a, b, out=a)
+        best = min(best, time.perf_counter() - t0)
+    return n / best
+
+
+def compile_probe() -> None:
+    """Time one small simulation in this process (the first call compiles or loads the cache)."""
+    from knockproof.transient.build import OutletSpec, PipeSpec, tree_network
+    from knockproof.transient.solver import simulate
+
+    net = tree_network(
+        [PipeSpec("p", "s", "v", 10.0, 0.02, 1300.0, 0.02)], "s", 40.0, {},
+        [OutletSpec("v", 1e-4, 0.0, "instant")],
+    )  # fmt: skip
+    t0 = time.perf_counter()
+    simulate(net, 0.01)
+    first = time.perf_counter() - t0
+    t0 = time.perf_counter()
+    simulate(net, 0.01)
+    print(f"{first:.3f} {time.perf_counter() - t0:.4f}")
+
+
+def main() -> None:
+    if "--compile-probe" in sys.argv:
+        compile_probe()
+        return
+    with tempfile.TemporaryDirectory() as cache:
+        env = {**os.environ, "NUMBA_CACHE_DIR": cache}
+        cmd = [sys.executable, __file__, "--compile-probe"]
+        cold = subprocess.run(cmd, env=env, capture_output=True, text=True, check=True).stdout
+        warm = subprocess.run(cmd, env=env, capture_output=True, text=True, check=True).stdout
+    cold_first, _ = (float(x) for x in cold.split())
+    warm_first, loaded = (float(x) for x in warm.split())
+    print(f"compile (empty cache), first call:  {cold_first:8.3f} s")
+    print(f"cached (new process), first call:   {warm_first:8.3f} s")
+    print(f"loaded, small simulation:           {loaded:8.4f} s")
+
+    from knockproof.transient.solver import simulate
+
+    t0 = time.perf_counter()
+    net, event = tower()
+    build = time.perf_counter() - t0
+    simulate(net, 0.002)  # load the kernel
+    result = simulate(net, DURATION_S)
+    st = result.stats
+    rate = st["node_updates"] / st["kernel_seconds"]
+    triad = triad_elements_per_second(int(st["sections"]))
+    valve = net.node_names.index(event)
+    print(f"pipes {net.n_pipes}, lumped {len(result.lumped_pipes)}, sections {st['sections']}, "
+          f"time step {result.time_step_s * 1e6:.1f} us, steps {result.steps}, "
+          f"largest wave-speed adjustment {result.largest_wave_speed_adjustment:.1%}")  # fmt: skip
+    print(f"network build {build:.2f} s, setup {st['setup_seconds']:.2f} s, "
+          f"kernel {st['kernel_seconds']:.3f} s")  # fmt: skip
+    print(f"kernel: {rate / 1e9:.3f} G node-updates/s")
+    print(f"numpy triad a = b + s*c over {st['sections']} elements: {triad / 1e9:.3f} G elements/s")
+    print(f"ratio kernel/triad: {rate / triad:.2f}  (target >= 0.5)")
+    print(f"event valve first peak {result.node_first_peak_pressure_pa[valve] / 1e3:.0f} kPa gauge, "
+          f"cavity collapses {result.cavity_collapses}")  # fmt: skip
+    peak_kib = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+    print(f"peak memory (ru_maxrss): {peak_kib / 1024:.1f} MiB")
+
+
+if __name__ == "__main__":
+    main()
