@@ -38,9 +38,9 @@ class Layout:
 
     # sections
     head: np.ndarray
-    flow_up: np.ndarray
-    flow_down: np.ndarray
-    cavity_volume: np.ndarray
+    scaled_flow: np.ndarray
+    section_r_scaled: np.ndarray
+    section_threshold: np.ndarray
     # pipes (only the unlumped ones, in ``pipe_index`` order)
     pipe_index: np.ndarray
     offset: np.ndarray
@@ -49,7 +49,6 @@ class Layout:
     r_coef: np.ndarray
     vapour_head_start: np.ndarray
     vapour_head_step: np.ndarray
-    vapour_head_max: np.ndarray
     area: np.ndarray
     reach_length: np.ndarray
     # groups
@@ -59,12 +58,16 @@ class Layout:
     group_fixed_head: np.ndarray
     group_vapour_head: np.ndarray
     group_head: np.ndarray
+    group_bs: np.ndarray
+    plain_count: int
+    class_start: np.ndarray
+    class_degree: np.ndarray
     end_ptr: np.ndarray
     end_section: np.ndarray
     end_neighbour: np.ndarray
     end_sign: np.ndarray
-    end_b: np.ndarray
-    end_r: np.ndarray
+    end_r_scaled: np.ndarray
+    end_inv_b: np.ndarray
     # valves
     valve_ptr: np.ndarray
     valve_order: np.ndarray
@@ -236,6 +239,22 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
     # groups of nodes joined by lumped pipes
     group, n_groups = _union_find_groups(n_nodes, up, down, grid.lumped)
     kept = np.flatnonzero(~grid.lumped)
+    # renumber groups: plain junctions first, by degree (the kernel loops over them in classes of
+    # equal degree), then the groups holding a reservoir, valve or arrestor
+    special = np.zeros(n_groups, dtype=bool)
+    for item in (*net.reservoirs, *net.valves, *net.arrestors):
+        special[group[item.node]] = True
+    degree = np.zeros(n_groups, dtype=np.int64)
+    np.add.at(degree, group[up[kept]], 1)
+    np.add.at(degree, group[down[kept]], 1)
+    rank = np.empty(n_groups, dtype=np.int64)
+    rank[np.lexsort((degree, special))] = np.arange(n_groups)
+    group = rank[group]
+    degree = degree[np.argsort(rank)]
+    special = special[np.argsort(rank)]
+    n_plain = int((~special).sum())
+    class_degree, first = np.unique(degree[:n_plain], return_index=True)
+    class_start = np.append(first, n_plain).astype(np.int64)
     fixed: dict[int, float] = {}
     group_kind = np.zeros(n_groups, dtype=np.int64)
     for r in net.reservoirs:
@@ -257,7 +276,11 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
         extra = {i: float(head_g[i]) for i in np.flatnonzero(~np.isnan(head_g))}
         extra[missing] = float(given_head[member])
         head_g = steady_heads(
-            n_groups, group[up[kept]], group[down[kept]], loss[kept], {**extra, **fixed},
+            n_groups,
+            group[up[kept]],
+            group[down[kept]],
+            loss[kept],
+            {**extra, **fixed},
             pipe_names=kept_names,
         )
 
@@ -276,18 +299,21 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
     vapour_offset = (net.vapour_pressure_abs_pa - net.atmospheric_pa) / (rho * g)
     hv_start = np.empty(len(kept))
     hv_step = np.empty(len(kept))
-    hv_max = np.empty(len(kept))
+    section_r = np.empty(total)
+    threshold = np.full(total, -1.0e6)
     for i, p in enumerate(kept):
         j = np.arange(reaches[i] + 1)
         q0 = flow[p]
-        head[offset[i] : offset[i] + reaches[i] + 1] = head_g[group[up[p]]] - j * r_coef[i] * q0 * abs(
-            q0
-        )
-        q[offset[i] : offset[i] + reaches[i] + 1] = q0
+        head[offset[i] : offset[i] + reaches[i] + 1] = head_g[group[up[p]]] - j * r_coef[
+            i
+        ] * q0 * abs(q0)
+        q[offset[i] : offset[i] + reaches[i] + 1] = q0 * b_coef[i]
         z0, z1 = elevation[up[p]], elevation[down[p]]
         hv_start[i] = z0 + vapour_offset
         hv_step[i] = (z1 - z0) / reaches[i]
-        hv_max[i] = max(z0, z1) + vapour_offset if cavitation else -1.0e6
+        section_r[offset[i] : offset[i] + reaches[i] + 1] = r_coef[i] / b_coef[i] ** 2
+        if cavitation and reaches[i] > 1:
+            threshold[offset[i] + 1 : offset[i] + reaches[i]] = hv_start[i] + hv_step[i] * j[1:-1]
 
     # groups: ends
     ends_of: list[list[tuple[int, int, int, int]]] = [[] for _ in range(n_groups)]
@@ -302,6 +328,15 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
     end_sign = np.array([e[1] for e in flat_ends], dtype=np.int64)
     end_section = np.array([e[2] for e in flat_ends], dtype=np.int64)
     end_neighbour = np.array([e[3] for e in flat_ends], dtype=np.int64)
+    end_inv_b = 1.0 / b_coef[end_pipe]
+    inv_sum = np.zeros(n_groups)
+    for gi in range(n_groups):
+        if end_ptr[gi + 1] == end_ptr[gi]:
+            raise SimulationError(
+                f"node {net.node_names[np.flatnonzero(group == gi)[0]]!r} is on no pipe"
+            )
+        inv_sum[gi] = end_inv_b[end_ptr[gi] : end_ptr[gi + 1]].sum()
+    group_bs = 1.0 / inv_sum
     top = np.full(n_groups, -np.inf)
     np.maximum.at(top, group, elevation)
     group_vapour = top + vapour_offset if cavitation else np.full(n_groups, -1.0e6)
@@ -363,9 +398,9 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
 
     return Layout(
         head=head,
-        flow_up=q,
-        flow_down=q.copy(),
-        cavity_volume=np.zeros(total),
+        scaled_flow=q,
+        section_r_scaled=section_r,
+        section_threshold=threshold,
         pipe_index=kept.astype(np.int64),
         offset=offset,
         reaches=reaches,
@@ -373,7 +408,6 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
         r_coef=r_coef,
         vapour_head_start=hv_start,
         vapour_head_step=hv_step,
-        vapour_head_max=hv_max,
         area=area_k,
         reach_length=dx,
         node_group=group,
@@ -382,12 +416,16 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
         group_fixed_head=fixed_head,
         group_vapour_head=group_vapour,
         group_head=head_g,
+        group_bs=group_bs,
+        plain_count=n_plain,
+        class_start=class_start,
+        class_degree=class_degree.astype(np.int64),
         end_ptr=end_ptr,
         end_section=end_section,
         end_neighbour=end_neighbour,
         end_sign=end_sign,
-        end_b=b_coef[end_pipe] if len(end_pipe) else np.zeros(0),
-        end_r=r_coef[end_pipe] if len(end_pipe) else np.zeros(0),
+        end_r_scaled=r_coef[end_pipe] / b_coef[end_pipe] ** 2,
+        end_inv_b=end_inv_b,
         valve_ptr=valve_ptr.astype(np.int64),
         valve_order=np.array(order, dtype=np.int64),
         valve_flow0=valve_flow,

@@ -30,8 +30,16 @@ remaining volume (the DVCM continuity equation with the new volume set to zero),
 lost at a collapse; from the next step the section is liquid again. ``psi = 1`` (the caller's choice; the value used
 in practice, from memory).
 
-State arrays are flat over all sections (pipes end to end); old and new arrays swap every step.
-``flow_down`` is meaningful only at a section holding a cavity; elsewhere ``flow_up`` is the flow.
+State arrays are flat over all sections (pipes end to end); old and new arrays swap every step. Flows
+are stored scaled to head units, ``q = B Q`` [m], with the pipe's own ``B``: then the characteristics
+read ``C_P = H_A + q_A - R' q_A|q_A|`` and ``C_M = H_B - q_B + R' q_B|q_B|`` with ``R' = R/B^2``, and an
+interior section is ``H = (C_P + C_M)/2``, ``q = (C_P - C_M)/2``: one coefficient per section and no
+division, which halves the memory traffic of the update. Each section keeps its upstream-side flow
+``qu``; the downstream-side flow ``qd`` is kept only where a cavity is open or closed this step
+(cavity volume non-zero; ``JUST_CLOSED`` marks the latter). A step is: (1) a liquid update of every
+section in one flat loop, counting sections below their vapour head; (2) the nodes, which overwrite
+the pipe-end sections; (3) the DVCM update, redone from the old state, of the interiors of pipes that
+hold cavities or were flagged in (1).
 """
 
 from __future__ import annotations
@@ -151,13 +159,175 @@ def _arrestor(cs, bs, v0, v1, cv, vz, dt, c0, n, k, z, hb, vol_old, q_old):  # p
 
 
 @njit(cache=True)
-def _node_pass(
-    step, t, dt, psi, cav_on, H, Qu, Qd, Vc, Hn, Qun,
-    gkind, gfixed, ghv, eptr, esec, enb, esign, eb, er, cbuf,
-    vptr, vq0, vdh0, vz, vfam, vexp, vtc, vt0, vq, vvol, cvb,
-    garr, ac0, an, ak, az, avol, aq, hb,
-    gvol, gnet, gcav, node_head, acc, stats,
+def _special_node(
+    gi,
+    kind,
+    cs,
+    bs,
+    step,
+    dt,
+    psi,
+    cav_on,
+    gfixed,
+    ghv,
+    vptr,
+    vz,
+    cvb,
+    garr,
+    ac0,
+    an,
+    ak,
+    az,
+    avol,
+    aq,
+    hb,
+    gvol,
+    gnet,
+    gcav,
+    acc,
+    stats,
 ):  # pragma: no cover - compiled
+    """Head at a group that is not a plain liquid junction (reservoir, valves, arrestor, cavity)."""
+    v0 = vptr[gi]
+    v1 = vptr[gi + 1]
+    ja = garr[gi]
+    if kind == 1:
+        return gfixed[gi]
+    if ja >= 0:
+        head, qa, vol, ok = _arrestor(
+            cs, bs, v0, v1, cvb, vz, dt, ac0[ja], an[ja], ak[ja], az[ja], hb, avol[ja], aq[ja]
+        )
+        if not ok:
+            stats[ST_STATUS] = STATUS_ARRESTOR_NEWTON
+            stats[ST_WHERE] = gi
+            return head
+        aq[ja] = qa
+        avol[ja] = vol
+        return head
+    head, _ = _valve_head(cs, bs, v0, v1, cvb, vz)
+    if not cav_on:
+        return head
+    vold = gvol[gi]
+    hv = ghv[gi]
+    if vold > 0.0 or head < hv:
+        qout = 0.0
+        for v in range(v0, v1):
+            dh = hv - vz[v]
+            if cvb[v] > 0.0 and dh > 0.0:
+                qout += math.sqrt(cvb[v] * dh)
+        net = qout - (cs - hv) / bs
+        old_rate = gnet[gi] if vold > 0.0 else 0.0
+        vol = vold + dt * (psi * net + (1.0 - psi) * old_rate)
+        if vol > 0.0:
+            gvol[gi] = vol
+            gnet[gi] = net
+            gcav[gi] = True
+            if vol > acc[ACC_MAX_CAVITY]:
+                acc[ACC_MAX_CAVITY] = vol
+            return hv
+        if vold > 0.0:  # collapse: the step's net inflow closes the cavity exactly
+            rate = -(vold + dt * (1.0 - psi) * old_rate) / (psi * dt)
+            head, _ = _valve_head(cs + bs * rate, bs, v0, v1, cvb, vz)
+            stats[ST_COLLAPSES] += 1
+            if stats[ST_FIRST_COLLAPSE] < 0:
+                stats[ST_FIRST_COLLAPSE] = step
+        gvol[gi] = 0.0
+    return head
+
+
+@njit(cache=True)
+def _node_pass(
+    step,
+    t,
+    dt,
+    psi,
+    cav_on,
+    after,
+    H,
+    Qu,
+    Qd,
+    Vc,
+    Hn,
+    Qun,
+    n_plain,
+    class_start,
+    class_degree,
+    gkind,
+    gfixed,
+    ghv,
+    gthr,
+    gbs,
+    eptr,
+    esec,
+    enb,
+    esign,
+    er,
+    einv,
+    cbuf,
+    deferred,
+    vptr,
+    vq0,
+    vdh0,
+    vz,
+    vfam,
+    vexp,
+    vtc,
+    vt0,
+    vq,
+    vvol,
+    cvb,
+    garr,
+    ac0,
+    an,
+    ak,
+    az,
+    avol,
+    aq,
+    hb,
+    gvol,
+    gnet,
+    gcav,
+    gmax_first,
+    gmax_after,
+    gmin,
+    acc,
+    stats,
+):  # pragma: no cover - compiled
+    """All nodes. Plain liquid junctions come first, in classes of equal degree; one whose head falls
+    below ``gthr`` (its vapour head, or +inf while it holds a cavity) is deferred to the general
+    solver, which also takes the reservoirs, valves and arrestors numbered after them."""
+    n_deferred = 0
+    for c in range(len(class_degree)):
+        for gi in range(class_start[c], class_start[c + 1]):
+            e0 = eptr[gi]
+            e1 = eptr[gi + 1]
+            scb = 0.0
+            for e in range(e0, e1):  # C_P or C_M of each pipe end, from the old state
+                nb = enb[e]
+                if esign[e] > 0:
+                    q = Qd[nb] if Vc[nb] != 0.0 else Qu[nb]
+                    ce = H[nb] + q - er[e] * q * abs(q)
+                else:
+                    q = Qu[nb]
+                    ce = H[nb] - q + er[e] * q * abs(q)
+                cbuf[e] = ce
+                scb += ce * einv[e]
+            head = scb * gbs[gi]
+            if not (head >= gthr[gi] and head <= HEAD_LIMIT_M):
+                deferred[n_deferred] = gi
+                n_deferred += 1
+                continue
+            for e in range(e0, e1):
+                sec = esec[e]
+                Hn[sec] = head
+                Qun[sec] = esign[e] * (cbuf[e] - head)
+            if after:
+                if head > gmax_after[gi]:
+                    gmax_after[gi] = head
+            elif head > gmax_first[gi]:
+                gmax_first[gi] = head
+            if head < gmin[gi]:
+                gmin[gi] = head
     for v in range(len(vq0)):
         if vq0[v] > 0.0:
             tau = area_ratio(vfam[v], vexp[v], vtc[v], vt0[v], t)
@@ -165,254 +335,410 @@ def _node_pass(
         else:
             cvb[v] = 0.0
     supply = 0.0
-    for gi in range(len(gkind)):
+    n_groups = len(gkind)
+    for m in range(n_deferred + n_groups - n_plain):
+        gi = deferred[m] if m < n_deferred else n_plain + m - n_deferred
         e0 = eptr[gi]
         e1 = eptr[gi + 1]
-        if e1 == e0:
-            continue
         scb = 0.0
-        sib = 0.0
         for e in range(e0, e1):
             nb = enb[e]
-            b = eb[e]
-            r = er[e]
             if esign[e] > 0:
                 q = Qd[nb] if Vc[nb] != 0.0 else Qu[nb]
-                c = H[nb] + q * (b - r * abs(q))
+                ce = H[nb] + q - er[e] * q * abs(q)
             else:
                 q = Qu[nb]
-                c = H[nb] - q * (b - r * abs(q))
-            cbuf[e] = c
-            scb += c / b
-            sib += 1.0 / b
-        bs = 1.0 / sib
+                ce = H[nb] - q + er[e] * q * abs(q)
+            cbuf[e] = ce
+            scb += ce * einv[e]
+        bs = gbs[gi]
         cs = scb * bs
         kind = gkind[gi]
-        v0 = vptr[gi]
-        v1 = vptr[gi + 1]
-        ja = garr[gi]
-        if kind == 1:
-            head = gfixed[gi]
-        elif kind == 0:
-            head = cs
-        elif ja >= 0:
-            head, qa, vol, ok = _arrestor(
-                cs, bs, v0, v1, cvb, vz, dt, ac0[ja], an[ja], ak[ja], az[ja], hb, avol[ja], aq[ja]
-            )
-            if not ok:
-                stats[ST_STATUS] = STATUS_ARRESTOR_NEWTON
-                stats[ST_WHERE] = gi
-                return
-            aq[ja] = qa
-            avol[ja] = vol
-        else:
-            head, _ = _valve_head(cs, bs, v0, v1, cvb, vz)
-        if cav_on and kind != 1 and ja < 0:
-            vold = gvol[gi]
-            hv = ghv[gi]
-            if vold > 0.0 or head < hv:
-                qout = 0.0
-                for v in range(v0, v1):
-                    dh = hv - vz[v]
-                    if cvb[v] > 0.0 and dh > 0.0:
-                        qout += math.sqrt(cvb[v] * dh)
-                net = qout - (cs - hv) * sib
-                old_rate = gnet[gi] if vold > 0.0 else 0.0
-                vol = vold + dt * (psi * net + (1.0 - psi) * old_rate)
-                if vol > 0.0:
-                    head = hv
-                    gvol[gi] = vol
-                    gnet[gi] = net
-                    gcav[gi] = True
-                    if vol > acc[ACC_MAX_CAVITY]:
-                        acc[ACC_MAX_CAVITY] = vol
-                else:
-                    if vold > 0.0:  # collapse: the step's net inflow closes the cavity exactly
-                        rate = -(vold + dt * (1.0 - psi) * old_rate) / (psi * dt)
-                        head, _ = _valve_head(cs + bs * rate, bs, v0, v1, cvb, vz)
-                        stats[ST_COLLAPSES] += 1
-                        if stats[ST_FIRST_COLLAPSE] < 0:
-                            stats[ST_FIRST_COLLAPSE] = step
-                    gvol[gi] = 0.0
+        head = _special_node(
+            gi,
+            kind,
+            cs,
+            bs,
+            step,
+            dt,
+            psi,
+            cav_on,
+            gfixed,
+            ghv,
+            vptr,
+            vz,
+            cvb,
+            garr,
+            ac0,
+            an,
+            ak,
+            az,
+            avol,
+            aq,
+            hb,
+            gvol,
+            gnet,
+            gcav,
+            acc,
+            stats,
+        )
         if not (abs(head) <= HEAD_LIMIT_M):
             stats[ST_STATUS] = STATUS_NODE_NONFINITE
             stats[ST_WHERE] = gi
+        if stats[ST_STATUS] != STATUS_OK:
             return
+        if gi < n_plain:
+            gthr[gi] = np.inf if gvol[gi] > 0.0 else ghv[gi]
         qv_total = 0.0
-        for v in range(v0, v1):
+        for v in range(vptr[gi], vptr[gi + 1]):
             dh = head - vz[v]
             qn = math.sqrt(cvb[v] * dh) if (cvb[v] > 0.0 and dh > 0.0) else 0.0
             vvol[v] += 0.5 * dt * (vq[v] + qn)
             vq[v] = qn
             qv_total += qn
         if kind == 1:
-            supply += qv_total + (head - cs) * sib
+            supply += qv_total + (head - cs) / bs
         for e in range(e0, e1):
-            s = esec[e]
-            Hn[s] = head
-            Qun[s] = esign[e] * (cbuf[e] - head) / eb[e]
-        node_head[gi] = head
+            sec = esec[e]
+            Hn[sec] = head
+            Qun[sec] = esign[e] * (cbuf[e] - head)
+        if after:
+            if head > gmax_after[gi]:
+                gmax_after[gi] = head
+        elif head > gmax_first[gi]:
+            gmax_first[gi] = head
+        if head < gmin[gi]:
+            gmin[gi] = head
     acc[ACC_SUPPLY] = supply
 
 
 @njit(cache=True)
-def _interior_pass(
-    step, dt, psi, cav_on, H, Qu, Qd, Hn, Qun, Qdn, Vc,
-    off, nre, bco, rco, hv0, dhv, hvmax, cavcount, cav_up, cav_dn, acc, stats,
+def _flat_pass(H, Qu, Hn, Qun, sr, slo):  # pragma: no cover - compiled
+    """Liquid update of every section from its neighbours (pipe ends are redone by the nodes).
+
+    Returns how many sections fell below their threshold ``slo`` (vapour head of an interior section
+    of a pipe without cavities; -HEAD_LIMIT_M elsewhere) or are not finite.
+    """
+    nbad = 0
+    for k in range(1, len(H) - 1):
+        qa = Qu[k - 1]
+        qb = Qu[k + 1]
+        r = sr[k]
+        cp = H[k - 1] + qa - r * qa * abs(qa)
+        cm = H[k + 1] - qb + r * qb * abs(qb)
+        h = 0.5 * (cp + cm)
+        Hn[k] = h
+        Qun[k] = 0.5 * (cp - cm)
+        nbad += not (h >= slo[k] and h <= HEAD_LIMIT_M)
+    return nbad
+
+
+@njit(cache=True)
+def _pipe_with_cavities(
+    p,
+    step,
+    dt,
+    psi,
+    cav_on,
+    H,
+    Qu,
+    Qd,
+    Hn,
+    Qun,
+    Qdn,
+    Vc,
+    off,
+    nre,
+    bco,
+    rco,
+    hv0,
+    dhv,
+    cav_up,
+    cav_dn,
+    acc,
+    stats,
 ):  # pragma: no cover - compiled
-    for p in range(len(off)):
-        n = nre[p]
-        if n < 2:
-            continue
-        o = off[p]
-        b = bco[p]
-        r = rco[p]
-        inv2b = 0.5 / b
-        if cavcount[p] == 0:
-            lo = hvmax[p]
-            nbad = 0
-            for k in range(o + 1, o + n):
-                qa = Qu[k - 1]
-                qb = Qu[k + 1]
-                cp = H[k - 1] + qa * (b - r * abs(qa))
-                cm = H[k + 1] - qb * (b - r * abs(qb))
-                h = 0.5 * (cp + cm)
-                Hn[k] = h
-                Qun[k] = (cp - cm) * inv2b
-                if not (h >= lo and h <= HEAD_LIMIT_M):
-                    nbad += 1
-            if nbad == 0:
+    """DVCM update of the interior of pipe ``p``; returns its number of open (or closing) cavities.
+
+    Flows are scaled (``q = B Q``); the cavity volume uses real flows ``(qd - qu)/B``.
+    """
+    n = nre[p]
+    o = off[p]
+    inv_b = 1.0 / bco[p]
+    r = rco[p]
+    count = 0
+    prev_v = 0.0  # old cavity marker of section k-1 (the pipe end holds none)
+    for k in range(o + 1, o + n):
+        v_old = Vc[k]
+        qa = Qd[k - 1] if prev_v != 0.0 else Qu[k - 1]
+        prev_v = v_old
+        if v_old < 0.0:  # JUST_CLOSED last step: liquid now
+            v_old = 0.0
+        qb = Qu[k + 1]
+        cp = H[k - 1] + qa - r * qa * abs(qa)
+        cm = H[k + 1] - qb + r * qb * abs(qb)
+        h = 0.5 * (cp + cm)
+        if not (abs(h) <= HEAD_LIMIT_M):
+            stats[ST_STATUS] = STATUS_PIPE_NONFINITE
+            stats[ST_WHERE] = p
+            return count
+        hv = hv0[p] + dhv[p] * (k - o)
+        if cav_on and (v_old > 0.0 or h < hv - 1e-6):
+            qu = cp - hv
+            qd = hv - cm
+            old_rate = (Qd[k] - Qu[k]) * inv_b if v_old > 0.0 else 0.0
+            vol = v_old + dt * (psi * (qd - qu) * inv_b + (1.0 - psi) * old_rate)
+            if vol > 0.0:
+                Hn[k] = hv
+                Qun[k] = qu
+                Qdn[k] = qd
+                Vc[k] = vol
+                count += 1
+                j = k - o
+                if 2 * j <= n:
+                    cav_up[p] = True
+                if 2 * j >= n:
+                    cav_dn[p] = True
+                if vol > acc[ACC_MAX_CAVITY]:
+                    acc[ACC_MAX_CAVITY] = vol
                 continue
-        count = 0
-        prev_v = 0.0
-        for k in range(o + 1, o + n):
-            v_old = Vc[k]
-            qa = Qd[k - 1] if prev_v != 0.0 else Qu[k - 1]
-            qb = Qu[k + 1]
-            cp = H[k - 1] + qa * (b - r * abs(qa))
-            cm = H[k + 1] - qb * (b - r * abs(qb))
-            h = 0.5 * (cp + cm)
-            if not (abs(h) <= HEAD_LIMIT_M):
-                stats[ST_STATUS] = STATUS_PIPE_NONFINITE
-                stats[ST_WHERE] = p
-                return
-            prev_v = v_old
-            if v_old < 0.0:
-                v_old = 0.0
-            hv = hv0[p] + dhv[p] * (k - o)
-            if cav_on and (v_old > 0.0 or h < hv - 1e-6):
-                qu = (cp - hv) / b
-                qd = (hv - cm) / b
-                old_rate = (Qd[k] - Qu[k]) if v_old > 0.0 else 0.0
-                vol = v_old + dt * (psi * (qd - qu) + (1.0 - psi) * old_rate)
-                if vol > 0.0:
-                    Hn[k] = hv
-                    Qun[k] = qu
-                    Qdn[k] = qd
-                    Vc[k] = vol
-                    count += 1
-                    j = k - o
-                    if 2 * j <= n:
-                        cav_up[p] = True
-                    if 2 * j >= n:
-                        cav_dn[p] = True
-                    if vol > acc[ACC_MAX_CAVITY]:
-                        acc[ACC_MAX_CAVITY] = vol
-                    continue
-                if v_old > 0.0:  # collapse: the step's net inflow closes the cavity exactly
-                    rate = -(v_old + dt * (1.0 - psi) * old_rate) / (psi * dt)
-                    h = 0.5 * (cp + cm + b * rate)
-                    Hn[k] = h
-                    Qun[k] = (cp - h) / b
-                    Qdn[k] = (h - cm) / b
-                    Vc[k] = JUST_CLOSED
-                    count += 1
-                    stats[ST_COLLAPSES] += 1
-                    if stats[ST_FIRST_COLLAPSE] < 0:
-                        stats[ST_FIRST_COLLAPSE] = step
-                    continue
-            Vc[k] = 0.0
-            Hn[k] = h
-            Qun[k] = (cp - cm) * inv2b
-        cavcount[p] = count
+            if v_old > 0.0:  # collapse: the step's net inflow closes the cavity exactly
+                rate = -(v_old + dt * (1.0 - psi) * old_rate) / (psi * dt)
+                h = 0.5 * (cp + cm + bco[p] * rate)
+                Hn[k] = h
+                Qun[k] = cp - h
+                Qdn[k] = h - cm
+                Vc[k] = JUST_CLOSED
+                count += 1  # its two flows still differ: keep the pipe on this path one more step
+                stats[ST_COLLAPSES] += 1
+                if stats[ST_FIRST_COLLAPSE] < 0:
+                    stats[ST_FIRST_COLLAPSE] = step
+                continue
+        Vc[k] = 0.0
+        Hn[k] = h
+        Qun[k] = 0.5 * (cp - cm)
+    return count
+
+
+@njit(cache=True)
+def _set_threshold(p, off, nre, hv0, dhv, slo, liquid):  # pragma: no cover - compiled
+    """Thresholds of pipe p's interior: its vapour heads while liquid, none while it has cavities."""
+    o = off[p]
+    for k in range(o + 1, o + nre[p]):
+        slo[k] = hv0[p] + dhv[p] * (k - o) if liquid else -HEAD_LIMIT_M
 
 
 @njit(cache=True)
 def run(
-    n_steps, dt, psi, cav_on,
-    head0, qu0, qd0, vc0,
-    off, nre, bco, rco, hv0, dhv, hvmax,
-    gkind, gfixed, ghv, ghead0, eptr, esec, enb, esign, eb, er,
-    vptr, vq0, vdh0, vz, vfam, vexp, vtc, vt0,
-    garr, ac0, an, ak, az, avol0, hb,
-    rec_groups, rec_every,
-    rec_out, gmax_first, gmax_after, gmin, gcav, cav_up, cav_dn, vvol, acc, stats,
+    n_steps,
+    dt,
+    psi,
+    cav_on,
+    head0,
+    qu0,
+    off,
+    nre,
+    bco,
+    rco,
+    hv0,
+    dhv,
+    sr,
+    slo0,
+    n_plain,
+    class_start,
+    class_degree,
+    gkind,
+    gfixed,
+    ghv,
+    gbs,
+    ghead0,
+    eptr,
+    esec,
+    enb,
+    esign,
+    er,
+    einv,
+    vptr,
+    vq0,
+    vdh0,
+    vz,
+    vfam,
+    vexp,
+    vtc,
+    vt0,
+    garr,
+    ac0,
+    an,
+    ak,
+    az,
+    avol0,
+    hb,
+    rec_groups,
+    rec_every,
+    rec_out,
+    gmax_first,
+    gmax_after,
+    gmin,
+    gcav,
+    cav_up,
+    cav_dn,
+    vvol,
+    acc,
+    stats,
 ):  # pragma: no cover - compiled
-    """Advance ``n_steps`` steps of ``dt``; fill the output arrays; return the final state."""
+    """Advance ``n_steps`` steps of ``dt``; fill the output arrays; return the final state.
+
+    ``qu0`` and ``rco`` are scaled (``B Q`` and ``R/B^2``); ``bco`` is ``B`` per pipe.
+    """
     H = head0.copy()
     Qu = qu0.copy()
-    Qd = qd0.copy()
-    Vc = vc0.copy()
+    Qd = qu0.copy()
+    Vc = np.zeros(len(head0))
     Hn = head0.copy()
     Qun = qu0.copy()
-    Qdn = qd0.copy()
+    Qdn = qu0.copy()
+    slo = slo0.copy()
+    gthr = ghv.copy()
     n_groups = len(gkind)
-    node_head = ghead0.copy()
+    n_pipes = len(off)
     cbuf = np.zeros(len(esec))
+    deferred = np.zeros(n_groups, dtype=np.int64)
     cvb = np.zeros(len(vq0))
     vq = vq0.copy()
     avol = avol0.copy()
     aq = np.zeros(len(avol0))
     gvol = np.zeros(n_groups)
     gnet = np.zeros(n_groups)
-    cavcount = np.zeros(len(off), dtype=np.int64)
+    cavcount = np.zeros(n_pipes, dtype=np.int64)
     stats[ST_FIRST_COLLAPSE] = -1
     for gi in range(n_groups):
-        gmax_first[gi] = node_head[gi]
-        gmin[gi] = node_head[gi]
+        gmax_first[gi] = ghead0[gi]
+        gmin[gi] = ghead0[gi]
         gmax_after[gi] = -np.inf
     for r in range(len(rec_groups)):
-        rec_out[0, r] = node_head[rec_groups[r]]
+        rec_out[0, r] = ghead0[rec_groups[r]]
     supply_old = acc[ACC_SUPPLY]
+    active = 0  # pipes with cavities
     for step in range(1, n_steps + 1):
         t = step * dt
+        after = stats[ST_FIRST_COLLAPSE] >= 0
+        nbad = _flat_pass(H, Qu, Hn, Qun, sr, slo)
         _node_pass(
-            step, t, dt, psi, cav_on, H, Qu, Qd, Vc, Hn, Qun,
-            gkind, gfixed, ghv, eptr, esec, enb, esign, eb, er, cbuf,
-            vptr, vq0, vdh0, vz, vfam, vexp, vtc, vt0, vq, vvol, cvb,
-            garr, ac0, an, ak, az, avol, aq, hb,
-            gvol, gnet, gcav, node_head, acc, stats,
+            step,
+            t,
+            dt,
+            psi,
+            cav_on,
+            after,
+            H,
+            Qu,
+            Qd,
+            Vc,
+            Hn,
+            Qun,
+            n_plain,
+            class_start,
+            class_degree,
+            gkind,
+            gfixed,
+            ghv,
+            gthr,
+            gbs,
+            eptr,
+            esec,
+            enb,
+            esign,
+            er,
+            einv,
+            cbuf,
+            deferred,
+            vptr,
+            vq0,
+            vdh0,
+            vz,
+            vfam,
+            vexp,
+            vtc,
+            vt0,
+            vq,
+            vvol,
+            cvb,
+            garr,
+            ac0,
+            an,
+            ak,
+            az,
+            avol,
+            aq,
+            hb,
+            gvol,
+            gnet,
+            gcav,
+            gmax_first,
+            gmax_after,
+            gmin,
+            acc,
+            stats,
         )
         if stats[ST_STATUS] != STATUS_OK:
             stats[ST_STEP] = step
             break
-        _interior_pass(
-            step, dt, psi, cav_on, H, Qu, Qd, Hn, Qun, Qdn, Vc,
-            off, nre, bco, rco, hv0, dhv, hvmax, cavcount, cav_up, cav_dn, acc, stats,
-        )
+        if nbad > 0 or active > 0:
+            active = 0
+            for p in range(n_pipes):
+                if nre[p] < 2:
+                    continue
+                if cavcount[p] == 0:
+                    if nbad == 0:
+                        continue
+                    o = off[p]
+                    flagged = False
+                    for k in range(o + 1, o + nre[p]):
+                        if not (Hn[k] >= slo[k] and Hn[k] <= HEAD_LIMIT_M):
+                            flagged = True
+                            break
+                    if not flagged:
+                        continue
+                count = _pipe_with_cavities(
+                    p,
+                    step,
+                    dt,
+                    psi,
+                    cav_on,
+                    H,
+                    Qu,
+                    Qd,
+                    Hn,
+                    Qun,
+                    Qdn,
+                    Vc,
+                    off,
+                    nre,
+                    bco,
+                    rco,
+                    hv0,
+                    dhv,
+                    cav_up,
+                    cav_dn,
+                    acc,
+                    stats,
+                )
+                if stats[ST_STATUS] != STATUS_OK:
+                    break
+                if (count > 0) != (cavcount[p] > 0):
+                    _set_threshold(p, off, nre, hv0, dhv, slo, count == 0)
+                cavcount[p] = count
+                if count > 0:
+                    active += 1
         if stats[ST_STATUS] != STATUS_OK:
             stats[ST_STEP] = step
             break
         acc[ACC_SUPPLY_VOLUME] += 0.5 * dt * (supply_old + acc[ACC_SUPPLY])
         supply_old = acc[ACC_SUPPLY]
-        if stats[ST_FIRST_COLLAPSE] >= 0:
-            for gi in range(n_groups):
-                h = node_head[gi]
-                if h > gmax_after[gi]:
-                    gmax_after[gi] = h
-                if h < gmin[gi]:
-                    gmin[gi] = h
-        else:
-            for gi in range(n_groups):
-                h = node_head[gi]
-                if h > gmax_first[gi]:
-                    gmax_first[gi] = h
-                if h < gmin[gi]:
-                    gmin[gi] = h
         if step % rec_every == 0:
             row = step // rec_every
             for r in range(len(rec_groups)):
-                rec_out[row, r] = node_head[rec_groups[r]]
+                rec_out[row, r] = Hn[esec[eptr[rec_groups[r]]]]
         H, Hn = Hn, H
         Qu, Qun = Qun, Qu
         Qd, Qdn = Qdn, Qd

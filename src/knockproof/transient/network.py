@@ -36,7 +36,6 @@ GRAVITY_M_PER_S2 = 9.80665
 """Standard gravity [m/s^2] (CGPM 1901)."""
 
 
-
 @dataclass(frozen=True)
 class Reservoir:
     """A constant-head node.

@@ -60,10 +60,11 @@ class TransientResult:
     node_max_pressure_pa, node_min_pressure_pa : np.ndarray
         Highest and lowest gauge pressure at each node [Pa].
     node_first_peak_pressure_pa : np.ndarray
-        Highest gauge pressure [Pa] before the first cavity collapse in the network (the whole run if
-        none collapses).
+        Highest gauge pressure [Pa] up to and including the step of the first cavity collapse in the
+        network (the whole run if none collapses).
     node_collapse_peak_pressure_pa : np.ndarray
-        Highest gauge pressure [Pa] from the first cavity collapse on; NaN if no cavity collapsed.
+        Highest gauge pressure [Pa] from the step after the first cavity collapse on; NaN if no cavity
+        collapsed.
     first_collapse_time_s : float
         Time of the first cavity collapse [s]; NaN if none.
     cavity_collapses : int
@@ -188,7 +189,9 @@ def simulate(
     started = time.perf_counter()
     check_network(network)
     if not (np.isfinite(duration_s) and duration_s > 0.0):
-        raise SimulationError(f"duration must be a positive number of seconds; found {duration_s!r}")
+        raise SimulationError(
+            f"duration must be a positive number of seconds; found {duration_s!r}"
+        )
     grid = choose_grid(
         network.pipe_length_m,
         network.pipe_wave_speed_m_per_s,
@@ -207,8 +210,8 @@ def simulate(
         if not (0 <= n < network.n_nodes):
             raise SimulationError(f"record node {n} out of range 0..{network.n_nodes - 1}")
     record_every = max(1, int(record_every))
-    rec_groups = lay.node_group[np.array(record, dtype=np.int64)] if record else np.zeros(
-        0, dtype=np.int64
+    rec_groups = (
+        lay.node_group[np.array(record, dtype=np.int64)] if record else np.zeros(0, dtype=np.int64)
     )
     rows = steps // record_every + 1
     rec_out = np.zeros((rows, len(record)))
@@ -240,11 +243,13 @@ def simulate(
     started = time.perf_counter()
     final_head, _, gas_final, cavity_left = kernel.run(
         steps, dt, CAVITY_WEIGHT, cavitation,
-        lay.head, lay.flow_up, lay.flow_down, lay.cavity_volume,
-        lay.offset, lay.reaches, lay.b_coef, lay.r_coef,
-        lay.vapour_head_start, lay.vapour_head_step, lay.vapour_head_max,
-        lay.group_kind, lay.group_fixed_head, lay.group_vapour_head, lay.group_head,
-        lay.end_ptr, lay.end_section, lay.end_neighbour, lay.end_sign, lay.end_b, lay.end_r,
+        lay.head, lay.scaled_flow,
+        lay.offset, lay.reaches, lay.b_coef, lay.r_coef / lay.b_coef**2,
+        lay.vapour_head_start, lay.vapour_head_step, lay.section_r_scaled, lay.section_threshold,
+        lay.plain_count, lay.class_start, lay.class_degree,
+        lay.group_kind, lay.group_fixed_head, lay.group_vapour_head, lay.group_bs, lay.group_head,
+        lay.end_ptr, lay.end_section, lay.end_neighbour, lay.end_sign, lay.end_r_scaled,
+        lay.end_inv_b,
         lay.valve_ptr, lay.valve_flow0, lay.valve_drop0, lay.valve_elevation,
         lay.valve_family, lay.valve_exponent, lay.valve_closure, lay.valve_start,
         lay.group_arrestor, lay.arrestor_c0, lay.arrestor_n, lay.arrestor_k,
