@@ -10,8 +10,10 @@ For a valve closing on flow Q at node n:
    larger main), or the supply, bounds the *reflection length* L. Its round-trip time 2 sum(L_i/a_i)
    is the critical time.
 3. Closure at or under the critical time is rapid: surge = rho a_1 V_1 (Joukowsky, pipe 1 feeds the
-   valve). Slower closure: Michaud's 2 rho sum(L_i V_i) / t_c over the reflection length, never more than
-   Joukowsky; so the surge never rises when the closure slows.
+   valve). Slower closure: Michaud's 2 rho sum(L_i V_i) / t_c with the rigid-column inertia of the
+   whole path to the supply (every column between the valve and the point that holds its pressure
+   must slow down: a short stub off a long main is not relieved by the tee when the closure is slow),
+   never more than Joukowsky; so the surge never rises when the closure slows.
 4. Along the path the surge reaching each node is the valve surge times the transmissions passed;
    the peak at a node is its static pressure plus that surge.
 """
@@ -123,9 +125,9 @@ def _event(
         r = by_pipe[tree.edges[u, v]["id"]]
         vel = stopped[(u, v)] / _area(r.inside_diameter_m)
         distance[u] = distance[v] + r.length_m
+        sum_lv += r.length_m * vel
         if not reached:
             travel += r.length_m / r.wave_speed_m_per_s
-            sum_lv += r.length_m * vel
             length += r.length_m
         # Junction at u: the wave arrives along (u, v).
         y_in = _admittance(r)

@@ -21,8 +21,8 @@ ASSUMPTIONS = (
     "bulk modulus from IAPWS-97 (within 0.4 % of IAPWS-95) at the side's temperature.",
     f"A junction reflecting {STRONG_REFLECTION:.0%} or more of an arriving wave (or the supply) bounds "
     "the reflection length used for the critical time 2L/a.",
-    "Rapid closure (closure time <= 2L/a): Joukowsky; slower: Michaud's estimate, never above "
-    "Joukowsky.",
+    "Rapid closure (closure time <= 2L/a): Joukowsky; slower: Michaud's estimate with the inertia of "
+    "the whole path to the supply, never above Joukowsky.",
     "Peak pressure = static pressure at the node + surge (conservative: the flowing pressure is lower).",
 )
 

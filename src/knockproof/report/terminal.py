@@ -21,7 +21,7 @@ def render_events(console: Console, a: Analysis, limit: int = 12) -> None:
         title_justify="left", show_edge=False, pad_edge=False,
     )
     t.add_column("valve")
-    t.add_column("where", overflow="fold", max_width=22)
+    t.add_column("where", overflow="fold", max_width=28)
     t.add_column(f"V {unit_label('velocity', u)}", justify="right")
     t.add_column("close / 2L/a ms", justify="right")
     t.add_column(f"surge {p_unit}", justify="right")

@@ -1,4 +1,5 @@
-"""Arrestor rules: required, placement, branch length, size class, gas volume, both sides, redundant.
+"""Arrestor rules: required, placement, branch length, size class, gas volume, both sides,
+redundant.
 
 The schedule (:mod:`knockproof.rules.schedule`) says what the building needs; the screening
 (:mod:`knockproof.rules.screening`) matches the designer's arrestors to it. These rules turn the
@@ -56,11 +57,11 @@ def _checks(ctx: Context, problem: str) -> Iterator[tuple[ArrestorRecommendation
     {"only_when_peak_exceeds_limit": False, "limit_pa": LIMIT_150_PSI_PA},
 )
 def required(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
-    """Every quick-closing valve needs protection, each side apart (the model code's wording). With
-    only_when_peak_exceeds_limit, only valves whose closure event peaks above limit_pa (simulated peak
-    where a simulation ran, else the closed-form one) do. A recommended arrestor with nothing shown
-    for it is a finding (unless the other side or the other arrestor of its long branch is shown:
-    arrestor.both-sides and arrestor.branch-length say those)."""
+    """Every quick-closing valve needs protection, each side apart (the model code's wording).
+    With only_when_peak_exceeds_limit, only valves whose closure event peaks above limit_pa
+    (simulated peak where a simulation ran, else the closed-form one) do. A recommended arrestor
+    with nothing shown for it is a finding (unless the other side or the other arrestor of its
+    long branch is shown: arrestor.both-sides and arrestor.branch-length say those)."""
     for r, _c in _checks(ctx, "missing"):
         n = len(r.valves)
         what = "its valve closes" if n == 1 else f"its {n} valves close"
@@ -100,16 +101,16 @@ def placement(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "arrestor.branch-length",
     "A branch over 20 ft takes two arrestors, one near the middle and one at the end",
     "error",
-    "The arrestor standard's placement rule (PDI-WH 201, from memory; CHECKS.md): branch up to 20 ft, "
-    "one arrestor at the end between the last two fixtures; longer, two whose ratings together "
-    "cover the branch.",
+    "The arrestor standard's placement rule (PDI-WH 201, from memory; CHECKS.md): branch up to "
+    "20 ft, one arrestor at the end between the last two fixtures; longer, two whose ratings "
+    "together cover the branch.",
     {"single_arrestor_max_branch_m": 20.0 * FT_M},
 )
 def branch_length(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """A branch runs from its tee (the node where the valves' pressure waves reflect off a larger
     pipe) to its last fixture. Longer than single_arrestor_max_branch_m, it takes two arrestors
-    unless all its fixtures lie within that distance of the end one. A finding when one of the two is
-    shown and the other is not."""
+    unless all its fixtures lie within that distance of the end one. A finding when one of the two
+    is shown and the other is not."""
     u = ctx.unit_system
     for r, _c in _checks(ctx, "branch-second"):
         other = ctx.screening.checks[r.partner].proposal if r.partner else None
@@ -138,11 +139,12 @@ def branch_length(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     },
 )
 def size_class(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
-    """The load of an arrestor is the sum of the standard's weights of the valves it protects (public
-    or private use), times separate_lines_factor for a fixture with both hot and cold supplies; the
-    class is the smallest whose range holds it. A private-use appliance of single_appliance_kinds
-    alone takes class AA (at its own valve when aa_for_single_residential_appliance). Findings: a
-    shown arrestor of a smaller class, or with neither class nor gas volume; a load beyond class F."""
+    """The load of an arrestor is the sum of the standard's weights of the valves it protects
+    (public or private use), times separate_lines_factor for a fixture with both hot and cold
+    supplies; the class is the smallest whose range holds it. A private-use appliance of
+    single_appliance_kinds alone takes class AA (at its own valve when
+    aa_for_single_residential_appliance). Findings: a shown arrestor of a smaller class, or with
+    neither class nor gas volume; a load beyond class F."""
     for r, c in _checks(ctx, "undersized"):
         shown = ctx.screening.proposals[c.proposal].size_class
         yield new_finding(
@@ -181,9 +183,11 @@ def size_class(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
 )
 def gas_volume(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """KE = sum of 1/2 rho L Q^2 / A over the pipes from the valve back to its supply (the whole
-    column, conservative), for the largest single valve an arrestor protects; V1 = KE / (P1 [(r^((n-1)/n)
-    - 1)/(n-1) - (1 - r^(-1/n))]), r = P2/P1. Findings: a shown gas volume below V1; a node where
-    the static pressure already reaches the limit (no cushion can hold the surge under it)."""
+    column, conservative), for the largest single valve an arrestor protects;
+    V1 = KE / (P1 [(r^((n-1)/n) - 1)/(n-1) - (1 - r^(-1/n))]), r = P2/P1, P1 the static pressure
+    at the arrestor and P2 limit_pa, both absolute (plus atmospheric_pa). Findings: a shown gas
+    volume below V1; a node where the static pressure already reaches the limit (no cushion can
+    hold the surge under it)."""
     u = ctx.unit_system
     for r, c in _checks(ctx, "gas-short"):
         shown = ctx.screening.proposals[c.proposal].gas_volume_m3
@@ -200,7 +204,8 @@ def gas_volume(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
         if r.gas_volume_m3 is None:
             yield new_finding(
                 "arrestor.gas-volume", _where(ctx, r),
-                f"static pressure at node {r.node} is {fmt(r.static_pressure_pa, 'pressure', u, 0)}, "
+                f"static pressure at node {r.node} is "
+                f"{fmt(r.static_pressure_pa, 'pressure', u, 0)}, "
                 f"at or above the surge limit {fmt(params['limit_pa'], 'pressure', u, 0)}: no gas "
                 "cushion can keep the peak under it.",
                 measured=r.static_pressure_pa, limit=float(params["limit_pa"]), unit="Pa",

@@ -114,7 +114,7 @@ class Context:
         return out
 
     def upstream_through_heaters(self, node: str) -> list[str]:
-        """Nodes from ``node`` up to the street: a heater outlet continues at its ``fed_from`` node."""
+        """Nodes from ``node`` up to the street; a heater outlet continues at its ``fed_from``."""
         out: list[str] = []
         seen: set[str] = set()
         cur: str | None = node
@@ -131,7 +131,7 @@ class Context:
         return str(self.tree.nodes[node].get("label") or "")
 
     def fixture_description(self, fixture_ids: list[str] | tuple[str, ...]) -> str:
-        """A human description of fixtures from their labels: ``"floor 2, unit A: kitchen, lavatory"``.
+        """A description of fixtures from their labels: ``"floor 2, unit A: kitchen, lavatory"``.
 
         Labels are split at commas; the parts all labels share at the front are said once.
         """

@@ -2,7 +2,8 @@
 
 A rule is a pure function ``(context, params) -> Iterable[Finding]`` with an id, a title, a default
 severity, a basis (where the rule comes from) and default parameters. Parameters carry their unit in
-their name (``max_velocity_m_per_s``, ``max_distance_m``, ``limit_pa``); values are SI floats inside.
+their name (``max_velocity_m_per_s``, ``max_distance_m``, ``limit_pa``); values are SI floats
+inside.
 Profiles (:mod:`knockproof.rules.profiles`) switch rules on and off and set their parameters.
 
 Severity: ``"error"`` fails the building, ``"warning"`` and ``"info"`` do not.
@@ -21,7 +22,9 @@ Severity = Literal["error", "warning", "info"]
 SEVERITIES: tuple[Severity, ...] = ("error", "warning", "info")
 
 #: Keys a finding's ``where`` may hold (all optional) besides ``description``.
-WHERE_KEYS: tuple[str, ...] = ("node", "pipe", "fixture", "event", "arrestor", "side", "description")
+WHERE_KEYS: tuple[str, ...] = (
+    "node", "pipe", "fixture", "event", "arrestor", "side", "description",
+)
 
 
 @dataclass(frozen=True)

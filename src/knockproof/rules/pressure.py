@@ -1,4 +1,4 @@
-"""Pressure rules: static pressure at fixtures (needs a PRV above the limit), minimum flowing pressure."""
+"""Pressure rules: static pressure at fixtures (a PRV above the limit), minimum flowing pressure."""
 
 from __future__ import annotations
 
@@ -18,7 +18,7 @@ MINIMUMS_FILE = "_minimum_pressures.toml"
 
 @cache
 def minimum_pressures() -> dict[str, tuple[float, str]]:
-    """Kind -> (minimum flowing pressure [Pa gauge], source), from the data file (IPC Table 604.3)."""
+    """Kind -> (minimum flowing pressure [Pa gauge], source), from the data file (IPC 604.3)."""
     text = files("knockproof.catalog").joinpath("profiles").joinpath(MINIMUMS_FILE).read_text(
         encoding="utf-8")
     data = tomllib.loads(text)

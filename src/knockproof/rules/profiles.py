@@ -319,7 +319,7 @@ def convert_parameter(name: str, value: Any, default: Any) -> Any:
             except ValueError as e:
                 raise ValueError(f"{k}: {e}") from None
         return merged
-    raise ValueError(f"cannot set this parameter from a profile (found {value!r})")  # pragma: no cover
+    raise ValueError(f"cannot set this parameter from a profile (found {value!r})")
 
 
 @cache

@@ -1,48 +1,48 @@
-"""The arrestor schedule: which arrestors the building needs, where, of what size class and gas volume.
+"""The arrestor schedule: which arrestors the building needs, where, of what class and gas volume.
 
-Terms (our definitions, documented in docs/rules.md):
+Our definitions (docs/rules.md shows this text):
 
-*Valve that needs an arrestor*
-    Every quick-closing valve, hot and cold side apart (model code: IPC 604.9 / UPC 609.10, from
-    memory: an arrestor where quick-closing valves are used). A profile may instead ask for one only
-    where the valve's closure event peaks above a limit (``arrestor.required``).
+**Valve that needs an arrestor.** Every quick-closing valve, hot and cold side apart (model code:
+IPC 604.9 / UPC 609.10, from memory: an arrestor where quick-closing valves are used). A profile
+may instead ask for one only where the valve's closure event peaks above a limit
+(`arrestor.required`).
 
-*Branch*
-    The trade measures a branch "from the tee on the main or riser to the last fixture". We find
-    that tee from the physics: the closure event's *reflection node* is where the valve's pressure
-    wave meets the larger pipe (or the supply) and reflects. A valve's *leg* is the pipe leaving its
-    reflection node towards the valve and everything below it. A branch is one leg with the valves
-    on it, grown in two ways: a leg that lies inside another valve's leg belongs to that branch
-    (nested tees), and a tee whose only other way on (with valves further down) leads, without
-    another tee in between, to the next valve's tee is a point along one run -- a header with
-    fixtures teed off it -- so the two are one branch. Legs that leave one tee side by side (a
-    floor header feeding ten apartments) stay separate branches.
+**Branch.** The trade measures a branch "from the tee on the main or riser to the last fixture".
+We find that tee from the physics: the closure event's *reflection node* is where the valve's
+pressure wave meets the larger pipe (or the supply) and reflects. A valve's *leg* is the pipe
+leaving its reflection node towards the valve and everything below it. A branch is one leg with
+the valves on it, grown in two ways: a leg that lies inside another valve's leg belongs to that
+branch (nested tees); and a tee whose only other way on (with valves further down) leads, with no
+other tee in between, to the next valve's tee is a point along one run -- a header with fixtures
+teed off it -- so the two are one branch. Legs that leave one tee side by side (a floor header
+feeding ten apartments) stay separate branches.
 
-*Branch length*
-    Along the pipes from the branch start (its tee) to the last fixture, i.e. the furthest valve.
+**Branch length.** Along the pipes from the branch start (its tee) to the last fixture, i.e. the
+furthest valve.
 
-*Placement* (the arrestor standard's rule, from memory, CHECKS.md)
-    Branch up to 20 ft: one arrestor for the branch total, at the end of the branch between the
-    last two fixtures (the node where their supplies part), or at the valve when the branch has
-    one. Longer branch: two, whose fixture-unit ratings together cover the branch -- the fixtures
-    whose take-off from the run lies in the first half of the branch go to one placed near the
-    middle (where the last of them leaves the run), the rest to one at the end. When every
-    fixture of a long branch lies within 20 ft of the end arrestor (fixtures bunched at the end of a
-    long feed), the second one would sit in the same place: one serves the branch.
-    A single residential appliance (clothes washer, dishwasher, ice maker in private use) gets its
-    own class AA arrestor at its valve (ASSE 1010's AA class).
+**Placement** (the arrestor standard's rule, from memory, CHECKS.md). Branch up to 20 ft: one
+arrestor for the branch total, at the end of the branch between the last two fixtures (the node
+where their supplies part), or at the valve when the branch has one. Longer branch: two, whose
+fixture-unit ratings together cover the branch: the fixtures whose take-off from the run lies in
+the first half of the branch go to one placed near the middle (where the last of them leaves the
+run; at its valve if it is alone), the rest to one at the end. When every fixture of a long branch
+lies within 20 ft of the end arrestor (fixtures bunched at the end of a long feed), a second one
+would sit in the same place, so one serves the branch. A single residential appliance (clothes
+washer, dishwasher, ice maker in private use) gets its own class AA arrestor at its valve
+(ASSE 1010's AA class).
 
-*Size class*
-    By the standard's fixture-unit weights (catalog, public or private use); a fixture piped with
-    separate hot and cold lines puts 3/4 of its weight on each side (CHECKS.md, from memory).
+**Size class.** By the standard's fixture-unit weights (catalogue, public or private use); a
+fixture piped with separate hot and cold lines puts 3/4 of its weight on each side (CHECKS.md,
+from memory). The smallest class whose range holds the load.
 
-*Gas volume*
-    Energy method (Dawson & Kalinske 1939, from memory): the kinetic energy 1/2 rho L Q^2 / A of the
-    valve's flow Q in every pipe from the valve back to the supply (conservative: the whole column
-    stops) is absorbed by gas compressed polytropically (n = 1.4 by default: the compression takes
-    milliseconds, so it is nearly adiabatic; n = 1 gives isothermal) from P1 = the static pressure
-    at the arrestor to P2 = the surge limit, both absolute. The largest single valve of those it
-    protects sets the volume (one valve closing at a time).
+**Gas volume.** Energy method (Dawson & Kalinske 1939, from memory): the kinetic energy
+1/2 rho L Q^2 / A of the valve's flow Q in every pipe from the valve back to the supply
+(conservative: the whole column stops) is absorbed by gas compressed polytropically (n = 1.4 by
+default: the compression takes milliseconds, so it is nearly adiabatic, and it gives a larger
+volume than isothermal; n = 1 gives isothermal) from P1 = the static pressure at the arrestor to
+P2 = the surge limit, both absolute. The largest single valve of those it protects sets the volume
+(one valve closing at a time). The energy method treats the column as rigid and undersizes a
+little; a transient simulation should confirm the class.
 """
 
 from __future__ import annotations
@@ -307,7 +307,9 @@ def _spot(ctx: Context, group: list[Valve]) -> str:
     return ctx.lca(group[-2].node, group[-1].node) or group[-1].node
 
 
-def _layout(ctx: Context, b: Branch, max_single_m: float) -> list[tuple[Position, list[Valve], str]]:
+def _layout(
+    ctx: Context, b: Branch, max_single_m: float
+) -> list[tuple[Position, list[Valve], str]]:
     vs = list(b.valves)
     if len(vs) == 1:
         return [("at-valve", vs, vs[0].node)]
@@ -326,7 +328,7 @@ def _layout(ctx: Context, b: Branch, max_single_m: float) -> list[tuple[Position
     end = _spot(ctx, second)
     if mid == end:
         return [("branch-end", vs, end)]
-    pos_first: Position = "at-valve" if len(first) == 1 and mid == first[0].node else "branch-middle"
+    pos_first: Position = "at-valve" if mid == first[0].node else "branch-middle"
     pos_second: Position = "at-valve" if len(second) == 1 else "branch-end"
     return [(pos_first, first, mid), (pos_second, second, end)]
 

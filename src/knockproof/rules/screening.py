@@ -1,21 +1,26 @@
 """Screening the designer's arrestors (``Building.arrestors``) against the schedule.
 
-Matching: a shown arrestor can answer a recommended one on the same side when it sits in that
-recommendation's branch (its tee or below it on the branch's legs) or within the placement distance
-of the recommended node. Pairs are taken nearest first (distance along the pipes to the recommended
-node); each shown arrestor answers at most one recommendation and each recommendation takes one.
+Our definitions (docs/rules.md shows this text):
 
-What can be wrong with a recommendation (``problems``):
+**Matching.** A shown arrestor can answer a recommended one on the same side when it sits in that
+recommendation's branch (its tee, or below it on the branch's legs) or within the placement
+distance of the recommended node. Pairs are taken nearest first (distance along the pipes to the
+recommended node); each shown arrestor answers at most one recommendation and each recommendation
+takes one.
 
-``missing``          nothing shown for it;
-``one-side``         nothing shown, but the other side of the same fixtures has its arrestor;
-``branch-second``    nothing shown, but the other arrestor of the same long branch is there;
-``too-far``          shown further from the recommended node than the placement distance;
-``undersized``       shown with a size class below the one required;
-``no-size``          shown with neither size class nor gas volume;
-``gas-short``        shown with a gas volume below the energy method's.
+**Problems** a recommendation can have:
 
-A shown arrestor that answers no recommendation is ``redundant``.
+- `missing`: nothing shown for it;
+- `one-side`: nothing shown, but the other side of the same fixtures has its arrestor;
+- `branch-second`: nothing shown, but the other arrestor of the same long branch is there;
+- `too-far`: shown further from the recommended node than the placement distance;
+- `undersized`: shown with a size class below the one required;
+- `no-size`: shown with neither size class nor gas volume;
+- `gas-short`: shown with a gas volume below the energy method's.
+
+A shown arrestor that answers no recommendation is *redundant*. A quick-closing valve passes when
+its recommended arrestor is shown with no problem (problems reported by a rule the profile switches
+off, or sets below error, do not fail it).
 """
 
 from __future__ import annotations

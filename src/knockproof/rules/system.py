@@ -20,10 +20,10 @@ from knockproof.rules.engine import Finding, new_finding, rule
     {"closing_device_kinds": ["check-valve", "backflow-preventer", "prv"]},
 )
 def closed_no_expansion_tank(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
-    """For each water heater (a water-heater device, or the node a heater outlet is fed from): if a
-    device of closing_device_kinds stands on the way from the heater back to the street, an expansion
-    tank must stand downstream of that device (on the cold side below it or on the hot side). A
-    finding per heater without one."""
+    """For each water heater (a water-heater device, or the node a heater outlet is fed from): if
+    a device of closing_device_kinds stands on the way from the heater back to the street, an
+    expansion tank must stand downstream of that device (on the cold side below it or on the hot
+    side). A finding per heater without one."""
     kinds = set(params["closing_device_kinds"])
     heaters: dict[str, str] = {}
     for d in ctx.building.devices:

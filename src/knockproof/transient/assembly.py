@@ -321,6 +321,8 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
         o, n = int(offset[i]), int(reaches[i])
         ends_of[group[up[p]]].append((i, -1, o, o + 1))
         ends_of[group[down[p]]].append((i, +1, o + n, o + n - 1))
+    for es in ends_of:  # a canonical order (by pipe name): sums at a node do not depend on numbering
+        es.sort(key=lambda e: (kept_names[e[0]], e[1]))
     end_ptr = np.zeros(n_groups + 1, dtype=np.int64)
     end_ptr[1:] = np.cumsum([len(e) for e in ends_of])
     flat_ends = [e for es in ends_of for e in es]
@@ -346,7 +348,10 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
 
     # valves, grouped
     valves = list(net.valves)
-    order = sorted(range(len(valves)), key=lambda k: int(group[valves[k].node]))
+    order = sorted(
+        range(len(valves)),
+        key=lambda k: (int(group[valves[k].node]), net.node_names[valves[k].node]),
+    )
     valve_ptr = np.zeros(n_groups + 1, dtype=np.int64)
     for k in order:
         valve_ptr[group[valves[k].node] + 1] += 1
