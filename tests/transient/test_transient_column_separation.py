@@ -2,10 +2,10 @@
 
 A solenoid closing on 1 m/s in 15 m of 3/4 in copper at 60 psi static: the Joukowsky rise rho a V
 (about 1.3 MPa) far exceeds the static pressure, so the returning low-pressure wave reaches vapour
-pressure and a cavity forms at the valve (Wylie & Streeter, Fluid Transients in Systems, 1993,
-sec. 8.4; Chaudhry, Applied Hydraulic Transients, 2014, ch. 11). Checks: the pressure never goes below
-vapour pressure; a cavity forms and collapses; a collapse peak is reported apart from the first peak;
-the first-cycle peak converges with the step; volume is conserved through cavity collapse.
+pressure and a cavity forms at the valve (Wylie & Streeter, Fluid Transients in Systems, 1993, sec.
+8.4; Chaudhry, Applied Hydraulic Transients, 2014, ch. 11). Checks: the pressure never goes below
+vapour pressure; a cavity forms and collapses; a collapse peak is reported apart from the first
+peak; the first-cycle peak converges with the step; volume is conserved through cavity collapse.
 """
 
 import numpy as np
@@ -65,7 +65,8 @@ def test_without_cavity_model_pressure_falls_below_vapour():
 def test_frictionless_cavity_opens_and_closes_on_the_analytic_times():
     # Frictionless, one cavity at the valve only. Characteristics give (derivation in the test):
     # cavity opens at 2L/a; while open the valve sees waves that change the column velocity by
-    # multiples of dv = (H0 - Hv) g / a every 2L/a; it closes when the volume integral returns to zero.
+    # multiples of dv = (H0 - Hv) g / a every 2L/a; it closes when the volume integral returns to
+    # zero.
     result = _run(0.0, reaches=40)
     period = 2 * LENGTH / SPEED
     h0 = STATIC / (RHO * G)

@@ -1,11 +1,11 @@
 """Gas-cushion arrestor sized by the energy method.
 
-The energy method (Dawson & Kalinske, J. AWWA 1939, from memory; CHECKS.md): the kinetic energy
-KE = 1/2 rho A L V0^2 compresses the gas from P1 to P2 (absolute, r = P2/P1); isothermally
-V1 = KE / (P1 (ln r - 1 + 1/r)). With that volume at the valve the simulated first peak lands near P2.
-The method treats the water column as rigid; with a very stiff column the simulation must reproduce it
-closely, and with real copper (a = 1300 m/s) within 5 % at r = 1.5 (SOLVER-NOTES, measured
-independently: ~2 %).
+The energy method (Dawson & Kalinske, J. AWWA 1939, from memory; CHECKS.md): the kinetic energy KE =
+1/2 rho A L V0^2 compresses the gas from P1 to P2 (absolute, r = P2/P1); isothermally V1 = KE / (P1
+(ln r - 1 + 1/r)). With that volume at the valve the simulated first peak lands near P2. The method
+treats the water column as rigid; with a very stiff column the simulation must reproduce it closely,
+and with real copper (a = 1300 m/s) within 5 % at r = 1.5 (SOLVER-NOTES, measured independently: ~2
+%).
 """
 
 import numpy as np
@@ -53,8 +53,8 @@ def test_rigid_column_limit_reproduces_energy_method(ratio):
     assert abs(peak_abs / (ratio * p1) - 1) < 2e-3
 
 
-def test_gas_returns_to_its_volume_at_line_pressure():
-    # isothermal gas at rest at the line pressure again holds its initial volume (Boyle)
+def test_gas_given_at_line_pressure_keeps_its_volume():
+    # a gas state given at the line pressure needs no precharge conversion (Boyle: V p = const)
     net, p1 = _line_with_cushion(1300.0, 1.5)
     result = simulate(net, 0.3)
     assert result.stats["gas_volume_initial_m3"][0] == pytest.approx(

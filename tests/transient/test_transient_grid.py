@@ -41,7 +41,8 @@ def test_default_step_from_percentile_and_stubs_lumped():
 
 
 def test_lumping_a_stub_changes_the_valve_peak_little():
-    # a 0.2 m stub to the valve at the end of a 30 m run; lumped at a coarse step, resolved at a fine
+    # a 0.2 m stub to the valve at the end of a 30 m run; lumped at a coarse step, resolved at a
+    # fine
     pipes = [
         PipeSpec("run", "supply", "elbow", 30.0, 0.02, 1300.0, 0.02),
         PipeSpec("stub", "elbow", "valve", 0.2, 0.015, 1320.0, 0.025),

@@ -33,20 +33,25 @@ def test_nan_initial_flow_names_the_pipe():
 
 
 def test_blow_up_during_the_run_names_the_pipe():
-    # an absurd friction factor makes the explicit friction term unstable: the state overflows
-    base = _net()
-    friction = base.pipe_friction_factor.copy()
-    friction[1] = 1.0e9
-    heads = base.node_initial_head_m.copy()
-    loss = friction[1] * 8.0 / (2 * 9.80665 * 0.02 * (np.pi * 0.02**2 / 4) ** 2) * 2e-4**2
-    heads[2] = heads[1] - loss  # keep the initial state steady
+    # Explicit friction is unstable when 2 R|Q| > B (a perturbation is multiplied by 1 - 2R|Q|/B
+    # each
+    # step). Give branch-7 R|Q|/B = 10 at a creeping flow (small steady loss) and close the tap.
+    g, a, d, dt = 9.80665, 1300.0, 0.02, 1e-3
+    area = np.pi * d * d / 4
+    flow = 1e-3 * area
+    b = a / (g * area)
+    reaches = round(8.0 / (a * dt))
+    r = 10.0 * b / flow
+    friction = r * 2 * g * d * area**2 / (8.0 / reaches)  # R = f dx / (2 g D A^2)
+    net = tree_network(
+        [
+            PipeSpec("feed", "supply", "tee", 20.0, 0.025, 1300.0, 0.02),
+            PipeSpec("branch-7", "tee", "tap", 8.0, d, a, friction),
+        ],
+        "supply", 40.0, {}, [OutletSpec("tap", flow, 0.01)],
+    )  # fmt: skip
     with pytest.raises(SimulationError, match=r"pipe 'branch-7'.*non-finite"):
-        simulate(
-            _net(pipe_friction_factor=friction, node_initial_head_m=heads,
-                 valves=(base.valves[0].__class__(2, 2e-4, heads[2], 0.01),)),
-            0.2,
-            time_step_s=1e-3,
-        )  # fmt: skip
+        simulate(net, 0.5, time_step_s=dt)
 
 
 def test_unsteady_initial_heads_name_the_pipe():

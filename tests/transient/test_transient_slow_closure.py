@@ -1,12 +1,13 @@
 """Slow linear-area closure against Michaud's bound and Allievi's interlocking equations.
 
-* Michaud: dH = 2 L V0 / (g t_c) for t_c > 2L/a (Wylie & Streeter 1993, sec. 1.5, from memory); for a
-  valve whose area closes linearly the exact peak is lower (about 0.77 of it at low head), so the
+* Michaud: dH = 2 L V0 / (g t_c) for t_c > 2L/a (Wylie & Streeter 1993, sec. 1.5, from memory); for
+  a valve whose area closes linearly the exact peak is lower (about 0.77 of it at low head), so the
   simulated peak must lie at or below Michaud and above 0.6 of it.
-* Allievi's interlocking equations: for a frictionless line fed by a reservoir, the head at the valve is
-  H(t) = H0 + F(t) - F(t - 2L/a) and the velocity V(t) = V0 - (g/a)(F(t) + F(t - 2L/a)), with the valve
-  law V = tau V0 sqrt(H/H0) (Wylie & Streeter 1993, ch. 1 and sec. 3.3; Chaudhry 2014, ch. 2). The test
-  solves that chain independently, step by step, and the simulation must match it to 1e-9.
+* Allievi's interlocking equations: for a frictionless line fed by a reservoir, the head at the
+  valve is H(t) = H0 + F(t) - F(t - 2L/a) and the velocity V(t) = V0 - (g/a)(F(t) + F(t - 2L/a)),
+  with the valve law V = tau V0 sqrt(H/H0) (Wylie & Streeter 1993, ch. 1 and sec. 3.3; Chaudhry
+  2014, ch. 2). The test solves that chain independently, step by step, and the simulation must
+  match it to 1e-9.
 """
 
 import numpy as np
@@ -31,7 +32,7 @@ def _line(head):
 
 
 def _allievi_valve_heads(head0, times):
-    """Head at the valve [m] at ``times`` (multiples of a step dividing 2L/a), by Allievi's chain."""
+    """Head at the valve [m] at ``times`` (steps dividing 2L/a), by Allievi's chain."""
     period = 2 * LENGTH / SPEED
     dt = times[1] - times[0]
     lag = round(period / dt)

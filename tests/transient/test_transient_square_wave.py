@@ -1,7 +1,7 @@
 """Instantaneous closure of a frictionless reservoir-pipe-valve line at Courant number 1.
 
-Check: the head at the valve is a square wave of amplitude a V0 / g (Joukowsky) and period 4L/a
-(the analytic solution of the water-hammer equations; Wylie & Streeter, Fluid Transients in Systems,
+Check: the head at the valve is a square wave of amplitude a V0 / g (Joukowsky) and period 4L/a (the
+analytic solution of the water-hammer equations; Wylie & Streeter, Fluid Transients in Systems,
 1993, sec. 1.4 and 3.1; Chaudhry, Applied Hydraulic Transients, 2014, sec. 2.x). The method of
 characteristics is exact in this case, so the match is to round-off.
 """

@@ -86,13 +86,24 @@ def _permuted(net: TransientNetwork, node_perm, pipe_perm) -> TransientNetwork:
         node_initial_head_m=net.node_initial_head_m[node_perm],
         reservoirs=tuple(Reservoir(int(new_of_old[r.node]), r.head_m) for r in net.reservoirs),
         valves=tuple(
-            Valve(int(new_of_old[v.node]), v.initial_flow_m3_per_s, v.initial_head_drop_m,
-                  v.closure_time_s, v.law, v.start_time_s)
+            Valve(
+                int(new_of_old[v.node]),
+                v.initial_flow_m3_per_s,
+                v.initial_head_drop_m,
+                v.closure_time_s,
+                v.law,
+                v.start_time_s,
+            )
             for v in reversed(net.valves)
         ),  # fmt: skip
         arrestors=tuple(
-            type(a)(int(new_of_old[a.node]), a.gas_volume_m3, a.gas_pressure_abs_pa,
-                    a.polytropic_exponent, a.throat_loss_s2_per_m5)
+            type(a)(
+                int(new_of_old[a.node]),
+                a.gas_volume_m3,
+                a.gas_pressure_abs_pa,
+                a.polytropic_exponent,
+                a.throat_loss_s2_per_m5,
+            )
             for a in net.arrestors
         ),  # fmt: skip
     )
@@ -105,7 +116,9 @@ def test_relabelling_leaves_results_unchanged():
     pipe_perm = rng.permutation(net.n_pipes)
     other = _permuted(net, node_perm, pipe_perm)
     a = simulate(net, 0.3, time_step_s=2e-4, record_nodes=[3])
-    b = simulate(other, 0.3, time_step_s=2e-4, record_nodes=[int(np.flatnonzero(node_perm == 3)[0])])
+    b = simulate(
+        other, 0.3, time_step_s=2e-4, record_nodes=[int(np.flatnonzero(node_perm == 3)[0])]
+    )
     for field in ("node_max_pressure_pa", "node_min_pressure_pa", "node_first_peak_pressure_pa"):
         np.testing.assert_allclose(getattr(b, field), getattr(a, field)[node_perm], rtol=1e-12)
     np.testing.assert_array_equal(b.node_cavity, a.node_cavity[node_perm])

@@ -7,6 +7,7 @@ from collections import Counter
 from knockproof.model.units import fmt
 from knockproof.report.cautions import CAUTION
 from knockproof.report.review_text import show_quantity
+from knockproof.rules.arrestors import show_volume
 from knockproof.rules.engine import registry
 from knockproof.rules.review import Review
 
@@ -66,7 +67,7 @@ def review_markdown(review: Review, limit: int = 0) -> str:
                   "|---|---|---|---|---:|---|---:|---|"]
         shown_a = review.arrestors if limit <= 0 else review.arrestors[:limit]
         for a in shown_a:
-            gas = fmt(a.gas_volume_m3, "volume", u, 2) if a.gas_volume_m3 is not None else "–"
+            gas = show_volume(a.gas_volume_m3, u) if a.gas_volume_m3 is not None else "–"
             lines.append(
                 f"| {a.id} | {_cell(a.node)} | {a.side} | {a.size_class} | {gas} | "
                 f"{_cell(a.description)} | {fmt(a.distance_from_valve_m, 'length', u)} | "

@@ -16,6 +16,7 @@ from rich.text import Text
 
 from knockproof.model.units import fmt
 from knockproof.report.cautions import CAUTION
+from knockproof.rules.arrestors import show_volume
 from knockproof.rules.engine import Finding, registry
 from knockproof.rules.review import Review
 
@@ -32,8 +33,9 @@ def show_quantity(value: float | None, unit: str, unit_system: str) -> str:
     kind = UNIT_KIND.get(unit)
     if kind is None:
         return f"{value:g} {unit}".strip()
-    digits = 2 if kind == "volume" else 1
-    return fmt(value, kind, unit_system, digits)
+    if kind == "volume":
+        return show_volume(value, unit_system)
+    return fmt(value, kind, unit_system, 1)
 
 
 def _finding_line(f: Finding) -> Text:
@@ -66,11 +68,10 @@ def render_review(console: Console, review: Review, limit: int = 5) -> None:
         t.add_column("rule", overflow="fold")
         t.add_column("severity")
         t.add_column("count", justify="right")
-        t.add_column("what it checks", overflow="fold", max_width=36)
         for rid in rules:
             if counts.get(rid):
                 s = next(f.severity for f in review.findings if f.rule == rid)
-                t.add_row(rid, Text(s, style=_STYLE[s]), str(counts[rid]), rules[rid].title)
+                t.add_row(rid, Text(s, style=_STYLE[s]), str(counts[rid]))
         console.print(t)
         console.print()
         for rid in rules:
@@ -78,7 +79,8 @@ def render_review(console: Console, review: Review, limit: int = 5) -> None:
             if not found:
                 continue
             s = found[0].severity
-            console.print(Text.assemble((rid, "bold"), " (", (s, _STYLE[s]), f"), {len(found)}"))
+            console.print(Text.assemble((rid, "bold"), " (", (s, _STYLE[s]), f", {len(found)}): ",
+                                        rules[rid].title))
             shown = found if limit <= 0 else found[:limit]
             for f in shown:
                 console.print(Padding(_finding_line(f), (0, 0, 0, 2)))
@@ -104,7 +106,7 @@ def render_review(console: Console, review: Review, limit: int = 5) -> None:
         t.add_column("protects", overflow="fold", max_width=30)
         shown_a = review.arrestors if limit <= 0 else review.arrestors[: max(limit * 2, 10)]
         for a in shown_a:
-            gas = fmt(a.gas_volume_m3, "volume", u, 2) if a.gas_volume_m3 is not None else "-"
+            gas = show_volume(a.gas_volume_m3, u) if a.gas_volume_m3 is not None else "-"
             t.add_row(a.id, escape(a.node), a.side, a.size_class, gas, escape(a.description))
         console.print(t)
         if len(review.arrestors) > len(shown_a):

@@ -11,13 +11,18 @@ from __future__ import annotations
 from collections.abc import Iterator, Mapping
 from typing import Any
 
-from knockproof.model.units import fmt
+from knockproof.model.units import fmt, to_display, unit_label
 from knockproof.physics.constants import ATM_PA, FT_M, PSI_PA
 from knockproof.rules.context import Context
 from knockproof.rules.engine import Finding, new_finding, rule
 from knockproof.rules.schedule import ArrestorRecommendation
 
 LIMIT_150_PSI_PA = 150.0 * PSI_PA
+
+
+def show_volume(value_m3: float, unit_system: str) -> str:
+    """A gas volume in the user's unit, three significant figures (volumes span decades)."""
+    return f"{to_display(value_m3, 'volume', unit_system):.3g} {unit_label('volume', unit_system)}"
 
 
 def _where(ctx: Context, r: ArrestorRecommendation, arrestor: str | None = None) -> dict[str, str]:
@@ -30,7 +35,7 @@ def _where(ctx: Context, r: ArrestorRecommendation, arrestor: str | None = None)
 
 def _install(ctx: Context, r: ArrestorRecommendation) -> str:
     gas = "" if r.gas_volume_m3 is None else \
-        f", gas volume at least {fmt(r.gas_volume_m3, 'volume', ctx.unit_system, 2)}"
+        f", gas volume at least {show_volume(r.gas_volume_m3, ctx.unit_system)}"
     return f"install a class {r.size_class} arrestor ({r.side}) at node {r.node}{gas}"
 
 
@@ -191,14 +196,15 @@ def gas_volume(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     u = ctx.unit_system
     for r, c in _checks(ctx, "gas-short"):
         shown = ctx.screening.proposals[c.proposal].gas_volume_m3
+        assert shown is not None and r.gas_volume_m3 is not None  # a gas-short pair has both
         yield new_finding(
             "arrestor.gas-volume", _where(ctx, r, c.proposal),
-            f"arrestor {c.proposal} holds {fmt(shown, 'volume', u, 2)} of gas; the energy method "
-            f"needs {fmt(r.gas_volume_m3, 'volume', u, 2)} to keep the surge under "
+            f"arrestor {c.proposal} holds {show_volume(shown, u)} of gas; the energy method "
+            f"needs {show_volume(r.gas_volume_m3, u)} to keep the surge under "
             f"{fmt(params['limit_pa'], 'pressure', u, 0)}.",
             measured=shown, limit=r.gas_volume_m3, unit="m3",
             recommendation=f"use an arrestor with at least "
-            f"{fmt(r.gas_volume_m3, 'volume', u, 2)} of gas",
+            f"{show_volume(r.gas_volume_m3, u)} of gas",
         )
     for r in ctx.schedule.arrestors:
         if r.gas_volume_m3 is None:

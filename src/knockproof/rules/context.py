@@ -133,28 +133,32 @@ class Context:
     def fixture_description(self, fixture_ids: list[str] | tuple[str, ...]) -> str:
         """A description of fixtures from their labels: ``"floor 2, unit A: kitchen, lavatory"``.
 
-        Labels are split at commas; the parts all labels share at the front are said once.
+        Labels are split at commas. Parts that all labels share at the front are said once before a
+        colon; parts all share at the end are said once after the varying ones
+        (``"washer at: bank position 1, bank position 2"``). Long lists keep their ends.
         """
-        labels = []
-        for fid in fixture_ids:
-            f = self.fixtures[fid]
-            labels.append(f.label or fid)
-        if len(labels) == 1:
-            return labels[0]
-        parts = [[x.strip() for x in lab.split(",")] for lab in labels]
-        common: list[str] = []
-        for i in range(min(len(p) for p in parts)):
-            if all(p[i] == parts[0][i] for p in parts) and i < min(len(p) for p in parts) - 1:
-                common.append(parts[0][i])
-            else:
-                break
-        rest = [", ".join(p[len(common):]) for p in parts]
-        seen: list[str] = []
-        for r in rest:
-            if r not in seen:
-                seen.append(r)
-        tail = ", ".join(seen)
-        return f"{', '.join(common)}: {tail}" if common else tail
+        labels = [self.fixtures[f].label or f for f in fixture_ids]
+        unique = list(dict.fromkeys(labels))
+        if len(unique) == 1:
+            return unique[0]
+        parts = [[x.strip() for x in lab.split(",")] for lab in unique]
+        shortest = min(len(p) for p in parts)
+        head = 0
+        while head < shortest - 1 and all(p[head] == parts[0][head] for p in parts):
+            head += 1
+        tail = 0
+        while tail < shortest - 1 - head and all(p[-1 - tail] == parts[0][-1 - tail]
+                                                for p in parts):
+            tail += 1
+        middle = [", ".join(p[head:len(p) - tail]) for p in parts]
+        if len(middle) > 4:
+            middle = [middle[0], middle[1], "...", middle[-1]]
+        listed = ", ".join(middle)
+        prefix = ", ".join(parts[0][:head])
+        suffix = ", ".join(parts[0][len(parts[0]) - tail:]) if tail else ""
+        if suffix:
+            listed = f"{suffix} at: {listed}"
+        return f"{prefix}: {listed}" if prefix else listed
 
     def node_description(self, node: str) -> str:
         label = self.node_label(node)

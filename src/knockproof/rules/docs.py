@@ -59,7 +59,7 @@ def show_value(name: str, value: Any) -> str:
 
 
 def same(a: Any, b: Any) -> bool:
-    """Parameter values equal, floats to 1e-9 relative (unit conversions differ in the last bits)."""
+    """Parameter values equal; floats to 1e-9 relative (unit conversions differ in the last bit)."""
     if isinstance(a, bool) or isinstance(b, bool):
         return a is b
     if isinstance(a, (int, float)) and isinstance(b, (int, float)):

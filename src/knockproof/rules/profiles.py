@@ -26,7 +26,7 @@ from __future__ import annotations
 import math
 import re
 import tomllib
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from functools import cache
 from importlib.resources import files
@@ -145,32 +145,31 @@ def _read(name: str, relative_to: str | None) -> tuple[str, str]:
     )
 
 
-def _line_finder(text: str) -> Any:
+def _line_finder(text: str) -> Callable[..., int | None]:
+    """``find(rule_id, key)``: the line of ``key`` in the rule's table (or at the top level when
+    ``rule_id`` is None); the table's header line when the key is not written there."""
     lines = text.splitlines()
+    table = re.compile(r"^\s*\[")
 
     def find(rule_id: str | None, key: str = "") -> int | None:
         start = 0
         if rule_id is not None:
             head = re.compile(r'^\s*\[\s*rules\s*\.\s*"?' + re.escape(rule_id) + r'"?\s*\]')
-            for n, line in enumerate(lines):
-                if head.match(line):
-                    start = n
-                    break
-            else:
+            found = [n for n, line in enumerate(lines) if head.match(line)]
+            if not found:
                 return None
+            start = found[0] + 1
             if not key:
-                return start + 1
+                return start
         if not key:
             return None
         pat = re.compile(r'^\s*"?' + re.escape(key) + r'"?\s*=')
-        for n in range(start + (1 if rule_id else 0), len(lines)):
-            if rule_id is not None and re.match(r"^\s*\[", lines[n]):
-                break
-            if rule_id is None and re.match(r"^\s*\[", lines[n]):
+        for n in range(start, len(lines)):
+            if table.match(lines[n]):
                 break
             if pat.match(lines[n]):
                 return n + 1
-        return start + 1 if rule_id else None
+        return start if rule_id is not None else None
 
     return find
 

@@ -80,7 +80,7 @@ class Review:
     timings_s: dict[str, float] = field(default_factory=dict, hash=False)
 
     def counts_by_severity(self) -> dict[str, int]:
-        out = {s: 0 for s in SEVERITIES}
+        out: dict[str, int] = {s: 0 for s in SEVERITIES}
         for f in self.findings:
             out[f.severity] += 1
         return out

@@ -256,10 +256,10 @@ def branches(ctx: Context, members: list[Valve]) -> list[Branch]:
     below: set[str] = set()
     valve_nodes = {v.node for v in members}
     for v in members:
-        x: str | None = v.node
-        while x is not None and x not in below:
-            below.add(x)
-            x = ctx.parent[x]
+        up: str | None = v.node
+        while up is not None and up not in below:
+            below.add(up)
+            up = ctx.parent[up]
     for r, ks in starts.items():
         legs = {k[1] for k in ks}
         on = [w for w in ctx.children[r] if w not in legs and w in below]

@@ -88,16 +88,16 @@ def pipe_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     u = ctx.unit_system
     factor = float(params["rating_factor"])
     worst: dict[str, tuple[float, EventResult]] = {}
-    for e, peak_valve, _protected in _events(ctx):
+    for e, peak_valve, protected in _events(ctx):
         pts = e.path
-        for k in range(len(pts) - 1):
-            lower = peak_valve if k == 0 else pts[k].peak_pressure_pa
-            peak = max(lower, pts[k + 1].peak_pressure_pa)
+        # With arrestors in place only the valve's simulated peak is known: check its pipe alone.
+        last = 1 if protected else len(pts) - 1
+        for k in range(min(last, len(pts) - 1)):
             pipe = ctx.pipe_into.get(pts[k].node)
             if pipe is None:
                 continue
-            if k > 0 and _protected:
-                break  # only the valve's simulated peak is known with arrestors in place
+            lower = peak_valve if k == 0 else pts[k].peak_pressure_pa
+            peak = lower if protected else max(lower, pts[k + 1].peak_pressure_pa)
             rating = ctx.pipes[pipe.id].pressure_rating_pa * factor
             if peak > rating * (1 + 1e-9) and peak > worst.get(pipe.id, (0.0, e))[0]:
                 worst[pipe.id] = (peak, e)

@@ -4,8 +4,8 @@ Importing this package is cheap: numba is loaded only when :func:`simulate` runs
 
 Public API: :class:`TransientNetwork`, :class:`Reservoir`, :class:`Valve`, :class:`GasCushion`
 (network.py); :func:`choose_grid`, :class:`Grid` (grid.py); :func:`simulate`,
-:func:`default_duration_s`, :class:`TransientResult` (solver.py);
-:func:`effective_area_ratio` (closure.py).
+:func:`default_duration_s`, :class:`TransientResult` (solver.py); :func:`effective_area_ratio`
+(closure.py).
 """
 
 from knockproof.transient.closure import effective_area_ratio

@@ -1,4 +1,4 @@
-"""From a :class:`TransientNetwork` and a :class:`Grid` to the flat arrays the compiled kernel runs on.
+"""From a :class:`TransientNetwork` and a :class:`Grid` to the flat arrays the kernel runs on.
 
 Layout (all pipes end to end): pipe ``p`` owns computing sections ``offset[p] .. offset[p] + N_p``
 of the flat section arrays. Nodes joined by lumped pipes are merged into one *group* (a union-find);
@@ -7,9 +7,9 @@ arrestor. The initial state is made exactly steady on the grid: group heads are 
 reservoir heads and the pipes' friction losses, and heads inside a pipe fall by ``R Q|Q|`` per reach
 (Wylie & Streeter 1993, sec. 3.1: steady state as the initial condition).
 
-Input checks (each raises :class:`~knockproof.errors.SimulationError` naming the pipe or node): finite
-and positive pipe data, node indices in range, initial heads consistent with the friction losses (1 mm),
-flow continuity at every node, valve head drop consistent with the node head (1 mm).
+Input checks (each raises :class:`~knockproof.errors.SimulationError` naming the pipe or node):
+finite and positive pipe data, node indices in range, initial heads consistent with the friction
+losses (1 mm), flow continuity at every node, valve head drop consistent with the node head (1 mm).
 """
 
 from __future__ import annotations
@@ -90,7 +90,7 @@ class Layout:
 
 
 def check_network(net: TransientNetwork) -> None:
-    """Check shapes, finiteness, signs and indices of the network arrays (names the pipe or node)."""
+    """Check shapes, finiteness, signs and indices of the network arrays (names pipe or node)."""
     n_nodes, n_pipes = net.n_nodes, net.n_pipes
     names = net.pipe_names
     per_pipe = {
@@ -261,7 +261,8 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
         gi = int(group[r.node])
         if gi in fixed and abs(fixed[gi] - r.head_m) > HEAD_TOLERANCE_M:
             raise SimulationError(
-                f"node {net.node_names[r.node]!r}: two constant-head nodes with different heads are "
+                f"node {net.node_names[r.node]!r}: two constant-head nodes with different heads "
+                "are "
                 "joined (directly or through a lumped pipe)"
             )
         fixed[gi] = float(r.head_m)
@@ -321,7 +322,9 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
         o, n = int(offset[i]), int(reaches[i])
         ends_of[group[up[p]]].append((i, -1, o, o + 1))
         ends_of[group[down[p]]].append((i, +1, o + n, o + n - 1))
-    for es in ends_of:  # a canonical order (by pipe name): sums at a node do not depend on numbering
+    for (
+        es
+    ) in ends_of:  # a canonical order (by pipe name): sums at a node do not depend on numbering
         es.sort(key=lambda e: (kept_names[e[0]], e[1]))
     end_ptr = np.zeros(n_groups + 1, dtype=np.int64)
     end_ptr[1:] = np.cumsum([len(e) for e in ends_of])
@@ -364,7 +367,8 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
     for j, k in enumerate(order):
         if valve_flow[j] > 0.0 and valve_drop[j] <= 0.0:
             raise SimulationError(
-                f"valve at node {net.node_names[valves[k].node]!r}: the head at the node is not above "
+                f"valve at node {net.node_names[valves[k].node]!r}: the head at the node is not "
+                "above "
                 "the outlet once lumped pipes are merged; give a smaller time step"
             )
 

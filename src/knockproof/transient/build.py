@@ -1,10 +1,10 @@
 """Build a steady :class:`TransientNetwork` for a tree of pipes from a few plain numbers.
 
 Given the pipes of a tree fed by one constant-head node and the flows of its open valves, the steady
-state follows without iteration: each pipe carries the sum of the valve flows beyond it, and heads fall
-by the Darcy-Weisbach loss along each pipe (Wylie & Streeter, *Fluid Transients in Systems*, 1993,
-sec. 3.1, steady state as initial condition). Used by the tests, the one-run estimate and any caller
-that has no steady solver of its own.
+state follows without iteration: each pipe carries the sum of the valve flows beyond it, and heads
+fall by the Darcy-Weisbach loss along each pipe (Wylie & Streeter, *Fluid Transients in Systems*,
+1993, sec. 3.1, steady state as initial condition). Used by the tests, the one-run estimate and any
+caller that has no steady solver of its own.
 """
 
 from __future__ import annotations
@@ -55,7 +55,7 @@ class OutletSpec:
 
 @dataclass(frozen=True)
 class CushionSpec:
-    """A gas cushion at a node (see :class:`GasCushion`); ``None`` pressure means the line pressure."""
+    """A gas cushion at a node (see :class:`GasCushion`); ``None`` pressure: the line pressure."""
 
     node: str
     gas_volume_m3: float

@@ -3,16 +3,17 @@
 ``tau = (Cd A)/(Cd A)_0`` falls from 1 to 0 during the closure. With ``s = (t - t_start)/t_c`` the
 fraction of the closure time elapsed (clipped to 0..1), every law here is one of two power families:
 
-* ``tau = (1 - s)^m`` - *slow at the end* for ``m > 1`` (most of the area goes early; the last part of
-  the stroke, which makes the surge, is gentle);
-* ``tau = 1 - s^m`` - *fast at the end* for ``m > 1`` (area barely changes at first, then goes quickly).
+* ``tau = (1 - s)^m`` - *slow at the end* for ``m > 1`` (most of the area goes early; the last part
+  of the stroke, which makes the surge, is gentle);
+* ``tau = 1 - s^m`` - *fast at the end* for ``m > 1`` (area barely changes at first, then goes
+  quickly).
 
-Named laws (the shapes are engineering judgement from memory, not measured curves; the closure time is
-the figure that matters and is always the caller's):
+Named laws (the shapes are engineering judgement from memory, not measured curves; the closure time
+is the figure that matters and is always the caller's):
 
-==================  ============  ===========================================================
+==================  ============  =================================================================
 law                 shape         used for
-==================  ============  ===========================================================
+==================  ============  =================================================================
 ``instant``         step          a closure taken as instantaneous at ``t_start`` (``t_c`` unused)
 ``linear-area``     (1-s)^1       generic: effective area linear in time
 ``solenoid``        (1-s)^1       appliance solenoid valve: roughly linear in area (from memory)
@@ -21,11 +22,11 @@ law                 shape         used for
 ``self-closing``    (1-s)^2       self-closing (metering) faucet: slow at the end (from memory)
 ``flush-valve``     (1-s)^2       flushometer: controlled, slow at the end (from memory)
 ``quarter-turn``    1-s^2         ball or plug valve turned by hand: most area goes at the end
-==================  ============  ===========================================================
+==================  ============  =================================================================
 
-Reference for the form ``tau(t)`` and the power family ``(1 - t/t_c)^Em``: Wylie & Streeter,
-*Fluid Transients in Systems*, 1993, sec. 3.3 (valve closure); Chaudhry, *Applied Hydraulic
-Transients*, 2014, sec. 3.5.
+Reference for the form ``tau(t)`` and the power family ``(1 - t/t_c)^Em``: Wylie & Streeter, *Fluid
+Transients in Systems*, 1993, sec. 3.3 (valve closure); Chaudhry, *Applied Hydraulic Transients*,
+2014, sec. 3.5.
 """
 
 from __future__ import annotations

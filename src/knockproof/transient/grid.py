@@ -1,25 +1,26 @@
 """The computational grid: one global time step, reaches per pipe, wave-speed adjustment, lumping.
 
-The method of characteristics with a fixed grid needs the Courant condition ``a dt = dx`` in every pipe
-(Wylie & Streeter, *Fluid Transients in Systems*, 1993, sec. 3.1 and 3.6: "adjusting the wave speed";
-Chaudhry, *Applied Hydraulic Transients*, 2014, sec. 3.6). With one time step for the whole network,
-pipe ``i`` gets ``N_i = max(1, round(L_i / (a_i dt)))`` reaches and its wave speed is adjusted to
-``a_i' = L_i / (N_i dt)``; the adjustment ``a_i'/a_i - 1`` is reported and bounded.
+The method of characteristics with a fixed grid needs the Courant condition ``a dt = dx`` in every
+pipe (Wylie & Streeter, *Fluid Transients in Systems*, 1993, sec. 3.1 and 3.6: "adjusting the wave
+speed"; Chaudhry, *Applied Hydraulic Transients*, 2014, sec. 3.6). With one time step for the whole
+network, pipe ``i`` gets ``N_i = max(1, round(L_i / (a_i dt)))`` reaches and its wave speed is
+adjusted to ``a_i' = L_i / (N_i dt)``; the adjustment ``a_i'/a_i - 1`` is reported and bounded.
 
 Rules chosen here (document of record):
 
-* **Time step.** Unless the caller gives one, the target time step is the ``percentile``-th percentile
-  (default 10) of the pipes' travel times ``L/a``, not the single shortest pipe: a building has many
-  0.3 m stubs, and resolving each of them would make the step tiny for no gain in the peaks.
+* **Time step.** Unless the caller gives one, the target time step is the ``percentile``-th
+  percentile (default 10) of the pipes' travel times ``L/a``, not the single shortest pipe: a
+  building has many 0.3 m stubs, and resolving each of them would make the step tiny for no gain in
+  the peaks.
 * **Lumping.** A pipe whose travel time is less than ``lump_ratio`` (default 0.5) times the *target*
   step - i.e. shorter than half a reach - is lumped: its two end nodes become one node with a common
-  head, and its water column (inertia, storage and friction) is left out. The decision is taken once,
-  at the target step, so refining the step below does not bring lumped pipes back.
+  head, and its water column (inertia, storage and friction) is left out. The decision is taken
+  once, at the target step, so refining the step below does not bring lumped pipes back.
   ``tests/transient/test_transient_grid.py`` checks on a stub at the valve that lumping changes the
   valve's first peak by less than 2 %.
 * **Refinement.** If at the target step some unlumped pipe would need a wave-speed adjustment beyond
-  ``max_wave_speed_adjustment``, the step is reduced along a fine geometric ladder (0.1 % rungs) until
-  every unlumped pipe fits, down to ``target / max_refinement``; failing that,
+  ``max_wave_speed_adjustment``, the step is reduced along a fine geometric ladder (0.1 % rungs)
+  until every unlumped pipe fits, down to ``target / max_refinement``; failing that,
   :class:`~knockproof.errors.SimulationError` names the pipe that does not fit.
 """
 
@@ -125,7 +126,8 @@ def choose_grid(
     lumped = travel < lump_ratio * target
     if lumped.all():
         raise SimulationError(
-            f"time step {target:.4g} s is too large: every pipe is shorter than {lump_ratio:g} of a "
+            f"time step {target:.4g} s is too large: every pipe is shorter than {lump_ratio:g} of "
+            "a "
             "reach and would be lumped"
         )
     kept = np.flatnonzero(~lumped)
@@ -148,10 +150,12 @@ def choose_grid(
         x = travel[pipe] / finest[0]
         need = abs(x / max(1.0, round(x)) - 1.0)
         raise SimulationError(
-            f"pipe {label[pipe]!r} (L = {length[pipe]:.4g} m, a = {speed[pipe]:.4g} m/s) does not fit "
+            f"pipe {label[pipe]!r} (L = {length[pipe]:.4g} m, a = {speed[pipe]:.4g} m/s) does not "
+            "fit "
             f"the grid: at every time step from {target:.4g} s down to {finest[0]:.4g} s some pipe "
             f"needs a wave-speed adjustment above {max_wave_speed_adjustment:.0%} (this one "
-            f"{need:.0%} at the finest step); allow a larger adjustment, a larger refinement, or give "
+            f"{need:.0%} at the finest step); allow a larger adjustment, a larger refinement, or "
+            "give "
             "a time step"
         )
     x = travel / chosen

@@ -1,45 +1,45 @@
-"""The compiled method-of-characteristics kernel (numba). Import only from the solver, never at startup.
+"""The compiled method-of-characteristics kernel (numba). Imported only by the solver when it runs.
 
 Per pipe, with ``B = a/(g A)`` and ``R = f dx/(2 g D A^2)`` (Wylie & Streeter, *Fluid Transients in
 Systems*, 1993, eqs. 3-18 to 3-21; Chaudhry, *Applied Hydraulic Transients*, 2014, sec. 3.3):
 
-    C+ :  H_P = C_P - B Q_P,   C_P = H_A + B Q_A - R Q_A |Q_A|     (from the section upstream)
-    C- :  H_P = C_M + B Q_P,   C_M = H_B - B Q_B + R Q_B |Q_B|     (from the section downstream)
+    C+ :  H_P = C_P - B Q_P,   C_P = H_A + B Q_A - R Q_A |Q_A|     (from the section upstream) C- :
+    H_P = C_M + B Q_P,   C_M = H_B - B Q_B + R Q_B |Q_B|     (from the section downstream)
 
 Interior section: ``H_P = (C_P + C_M)/2``, ``Q_P = (C_P - C_M)/(2B)``. Friction is quasi-steady and
 explicit (first order), adequate at Courant number 1 for the ``f L V/(2 D a)`` of building piping.
 
 Nodes (Wylie & Streeter 1993, ch. 3; Chaudhry 2014, ch. 3): every pipe end ``e`` at a node gives an
 inflow ``(C_e - H)/B_e`` (``C_e`` is ``C_P`` for a pipe ending at the node, ``C_M`` for one starting
-there), so the pipes together give ``(C_s - H)/B_s`` with ``1/B_s = sum 1/B_e`` and
-``C_s = B_s sum C_e/B_e``. Then
+there), so the pipes together give ``(C_s - H)/B_s`` with ``1/B_s = sum 1/B_e`` and ``C_s = B_s sum
+C_e/B_e``. Then
 
 * reservoir: ``H`` fixed;
 * junction or dead end: ``H = C_s``;
-* valve(s) to atmosphere: ``H = C_s - B_s sum Q_v(H)``, ``Q_v = sqrt(Cv (H - z))``,
-  ``Cv = (tau Q0)^2 / dH0``; closed form for one valve, safeguarded Newton for several;
+* valve(s) to atmosphere: ``H = C_s - B_s sum Q_v(H)``, ``Q_v = sqrt(Cv (H - z))``, ``Cv = (tau
+  Q0)^2 / dH0``; closed form for one valve, safeguarded Newton for several;
 * gas cushion: unknown arrestor inflow ``Q_a``; gas volume ``V = V_old - dt/2 (Q_a,old + Q_a)``
   (trapezoid), head ``C0 V^-n - H_b + z + k Q_a|Q_a|`` must equal the node head; Newton on ``Q_a``.
 
-Vapour cavities: the discrete vapour-cavity model (DVCM; Wylie & Streeter 1993, sec. 8.4; Chaudhry 2014,
-sec. 11.4) at interior sections and at nodes without an arrestor. When the head would fall below the
-vapour head the head is held at it, the two sides carry different flows and the cavity volume grows by
-``dt [psi (Q_out - Q_in) + (1 - psi)(Q_out - Q_in)_old]``; when the volume returns to zero the cavity
-collapses. In the step where it closes, the head is set so that the step's net inflow fills exactly the
-remaining volume (the DVCM continuity equation with the new volume set to zero), so no liquid is made or
-lost at a collapse; from the next step the section is liquid again. ``psi = 1`` (the caller's choice; the value used
-in practice, from memory).
+Vapour cavities: the discrete vapour-cavity model (DVCM; Wylie & Streeter 1993, sec. 8.4; Chaudhry
+2014, sec. 11.4) at interior sections and at nodes without an arrestor. When the head would fall
+below the vapour head the head is held at it, the two sides carry different flows and the cavity
+volume grows by ``dt [psi (Q_out - Q_in) + (1 - psi)(Q_out - Q_in)_old]``; when the volume returns
+to zero the cavity collapses. In the step where it closes, the head is set so that the step's net
+inflow fills exactly the remaining volume (the DVCM continuity equation with the new volume set to
+zero), so no liquid is made or lost at a collapse; from the next step the section is liquid again.
+``psi = 1`` (the value used in practice, from memory).
 
-State arrays are flat over all sections (pipes end to end); old and new arrays swap every step. Flows
-are stored scaled to head units, ``q = B Q`` [m], with the pipe's own ``B``: then the characteristics
-read ``C_P = H_A + q_A - R' q_A|q_A|`` and ``C_M = H_B - q_B + R' q_B|q_B|`` with ``R' = R/B^2``, and an
-interior section is ``H = (C_P + C_M)/2``, ``q = (C_P - C_M)/2``: one coefficient per section and no
-division, which halves the memory traffic of the update. Each section keeps its upstream-side flow
-``qu``; the downstream-side flow ``qd`` is kept only where a cavity is open or closed this step
-(cavity volume non-zero; ``JUST_CLOSED`` marks the latter). A step is: (1) a liquid update of every
-section in one flat loop, counting sections below their vapour head; (2) the nodes, which overwrite
-the pipe-end sections; (3) the DVCM update, redone from the old state, of the interiors of pipes that
-hold cavities or were flagged in (1).
+State arrays are flat over all sections (pipes end to end); old and new arrays swap every step.
+Flows are stored scaled to head units, ``q = B Q`` [m], with the pipe's own ``B``: then the
+characteristics read ``C_P = H_A + q_A - R' q_A|q_A|`` and ``C_M = H_B - q_B + R' q_B|q_B|`` with
+``R' = R/B^2``, and an interior section is ``H = (C_P + C_M)/2``, ``q = (C_P - C_M)/2``: one
+coefficient per section and no division, which halves the memory traffic of the update. Each section
+keeps its upstream-side flow ``qu``; the downstream-side flow ``qd`` is kept only where a cavity is
+open or closed this step (cavity volume non-zero; ``JUST_CLOSED`` marks the latter). A step is: (1)
+a liquid update of every section in one flat loop, counting sections below their vapour head; (2)
+the nodes, which overwrite the pipe-end sections; (3) the DVCM update, redone from the old state, of
+the interiors of pipes that hold cavities or were flagged in (1).
 """
 
 from __future__ import annotations
@@ -69,7 +69,7 @@ ACC_MAX_CAVITY = 1
 ACC_SUPPLY_VOLUME = 2
 
 JUST_CLOSED = -1.0
-"""Cavity-volume marker of a section whose cavity closed this step: liquid, but its two flows differ."""
+"""Cavity-volume marker of a section whose cavity closed this step (liquid, two flows differ)."""
 
 
 @njit(cache=True)
@@ -293,9 +293,9 @@ def _node_pass(
     acc,
     stats,
 ):  # pragma: no cover - compiled
-    """All nodes. Plain liquid junctions come first, in classes of equal degree; one whose head falls
-    below ``gthr`` (its vapour head, or +inf while it holds a cavity) is deferred to the general
-    solver, which also takes the reservoirs, valves and arrestors numbered after them."""
+    """All nodes. Plain liquid junctions come first, in classes of equal degree; one whose head
+    falls below ``gthr`` (its vapour head, or +inf while it holds a cavity) is deferred to the
+    general solver, which also takes the reservoirs, valves and arrestors numbered after them."""
     n_deferred = 0
     for c in range(len(class_degree)):
         for gi in range(class_start[c], class_start[c + 1]):
@@ -522,7 +522,7 @@ def _pipe_with_cavities(
 
 @njit(cache=True)
 def _set_threshold(p, off, nre, hv0, dhv, slo, liquid):  # pragma: no cover - compiled
-    """Thresholds of pipe p's interior: its vapour heads while liquid, none while it has cavities."""
+    """Thresholds of pipe p's interior: vapour heads while liquid, none while it has a cavity."""
     o = off[p]
     for k in range(o + 1, o + nre[p]):
         slo[k] = hv0[p] + dhv[p] * (k - o) if liquid else -HEAD_LIMIT_M

@@ -1,27 +1,28 @@
 """The network the transient solver works on: plain arrays, SI units, no graph library.
 
 A :class:`TransientNetwork` is what an adapter (from the building tree, or a test) hands to
-:func:`knockproof.transient.solver.simulate`. Nodes are numbered ``0 .. n_nodes-1`` and pipes
-``0 .. n_pipes-1``; every per-node or per-pipe quantity is an array indexed that way.
+:func:`knockproof.transient.solver.simulate`. Nodes are numbered ``0 .. n_nodes-1`` and pipes ``0 ..
+n_pipes-1``; every per-node or per-pipe quantity is an array indexed that way.
 
-Heads are *piezometric heads in metres of water, gauge based*: ``H = p / (rho g) + z`` with ``p`` the
-gauge pressure [Pa] and ``z`` the elevation [m]. A fixture outlet open to the atmosphere at elevation
-``z`` therefore has head ``z``.
+Heads are *piezometric heads in metres of water, gauge based*: ``H = p / (rho g) + z`` with ``p``
+the gauge pressure [Pa] and ``z`` the elevation [m]. A fixture outlet open to the atmosphere at
+elevation ``z`` therefore has head ``z``.
 
 Node roles (at most one reservoir, any number of valves, at most one arrestor per node):
 
-* **Reservoir** - constant head. Used for the supply (street main, booster, tank) and also for the outlet
-  of a pressure-reducing valve held at its setting: during a surge a PRV does not respond within the first
-  few wave cycles that matter here, and treating it as a fixed-head node reflects the wave at full
-  strength, which is the conservative choice for peak pressure (engineering judgement, from memory).
+* **Reservoir** - constant head. Used for the supply (street main, booster, tank) and also for the
+  outlet of a pressure-reducing valve held at its setting: during a surge a PRV does not respond
+  within the first few wave cycles that matter here, and treating it as a fixed-head node reflects
+  the wave at full strength, which is the conservative choice for peak pressure (engineering
+  judgement, from memory).
 * **Valve** - a fixture valve discharging to atmosphere at the node; see :class:`Valve`.
 * **Arrestor** - a gas cushion connected at the node; see :class:`GasCushion`.
-* every other node is a **junction** (any number of pipes, common head) or, with one pipe, a **dead end**
-  (zero flow).
+* every other node is a **junction** (any number of pipes, common head) or, with one pipe, a **dead
+  end** (zero flow).
 
-References: E. B. Wylie and V. L. Streeter, *Fluid Transients in Systems*, Prentice Hall, 1993
-(ch. 3 boundary conditions); M. H. Chaudhry, *Applied Hydraulic Transients*, 3rd ed., Springer 2014
-(ch. 3-4).
+References: E. B. Wylie and V. L. Streeter, *Fluid Transients in Systems*, Prentice Hall, 1993 (ch.
+3 boundary conditions); M. H. Chaudhry, *Applied Hydraulic Transients*, 3rd ed., Springer 2014 (ch.
+3-4).
 """
 
 from __future__ import annotations
@@ -61,21 +62,21 @@ class Valve:
 
         Q = tau(t) * Q0 * sqrt(dH / dH0)
 
-    where ``dH = H - z`` is the head drop across the valve [m] (outlet at atmospheric pressure at the
-    node elevation ``z``), ``Q0`` and ``dH0`` are the initial flow and head drop, and ``tau`` is the
-    effective-area ratio ``(Cd A) / (Cd A)_0`` given by the closure law
-    (:func:`knockproof.transient.closure.effective_area_ratio`). No flow enters through the valve from
-    the atmosphere: when ``dH <= 0`` the valve passes nothing.
+    where ``dH = H - z`` is the head drop across the valve [m] (outlet at atmospheric pressure at
+    the node elevation ``z``), ``Q0`` and ``dH0`` are the initial flow and head drop, and ``tau`` is
+    the effective-area ratio ``(Cd A) / (Cd A)_0`` given by the closure law
+    (:func:`knockproof.transient.closure.effective_area_ratio`). No flow enters through the valve
+    from the atmosphere: when ``dH <= 0`` the valve passes nothing.
 
     Attributes
     ----------
     node : int
         Node index.
     initial_flow_m3_per_s : float
-        ``Q0`` [m^3/s], >= 0. Must equal the flow the pipes deliver to the node in the initial state.
-    initial_head_drop_m : float
-        ``dH0`` [m], > 0 when ``Q0 > 0``: the node's initial head minus its elevation (checked to 1 mm).
-    closure_time_s : float
+        ``Q0`` [m^3/s], >= 0. Must equal the flow the pipes deliver to the node in the initial
+        state. initial_head_drop_m : float
+        ``dH0`` [m], > 0 when ``Q0 > 0``: the node's initial head minus its elevation (checked to 1
+        mm). closure_time_s : float
         Time from first movement to full closure [s]; 0 means an instantaneous closure.
     law : str
         A law name of :data:`knockproof.transient.closure.LAW_TABLE`.
@@ -95,15 +96,15 @@ class Valve:
 class GasCushion:
     """A gas-cushion water-hammer arrestor (or air chamber) connected at a node.
 
-    The gas follows the polytropic law ``p_abs * V^n = constant`` (Wylie & Streeter 1993, sec. 3.5 air
-    chamber; Chaudhry 2014, sec. 3.7). The connection (throat) has a head loss ``k * Qa * |Qa|`` [m] for
-    a flow ``Qa`` [m^3/s] into the arrestor. The water level in the chamber is taken at the node
-    elevation.
+    The gas follows the polytropic law ``p_abs * V^n = constant`` (Wylie & Streeter 1993, sec. 3.5
+    air chamber; Chaudhry 2014, sec. 3.7). The connection (throat) has a head loss ``k * Qa * |Qa|``
+    [m] for a flow ``Qa`` [m^3/s] into the arrestor. The water level in the chamber is taken at the
+    node elevation.
 
-    The gas state given here is any one equilibrium state, e.g. the factory precharge: before the run
-    the solver brings the gas isothermally (slow charging, Boyle's law) to the node's initial absolute
-    pressure, ``V0 = V_given * p_given / p_line``. When ``gas_pressure_abs_pa`` is the line pressure,
-    ``V0`` is ``gas_volume_m3`` itself.
+    The gas state given here is any one equilibrium state, e.g. the factory precharge: before the
+    run the solver brings the gas isothermally (slow charging, Boyle's law) to the node's initial
+    absolute pressure, ``V0 = V_given * p_given / p_line``. When ``gas_pressure_abs_pa`` is the line
+    pressure, ``V0`` is ``gas_volume_m3`` itself.
 
     Attributes
     ----------
@@ -154,7 +155,8 @@ class TransientNetwork:
         Steady piezometric head at t = 0 [m], gauge based. Must be consistent with the flows and
         friction factors: ``H_up - H_down = f L/(2 g D A^2) Q|Q|`` to 1 mm
         (see :func:`steady_heads`, which builds such heads).
-    reservoirs, valves, arrestors : tuples of :class:`Reservoir`, :class:`Valve`, :class:`GasCushion`
+    reservoirs, valves, arrestors : tuples of :class:`Reservoir`, :class:`Valve`,
+    :class:`GasCushion`
     density_kg_m3 : float
         Water density [kg/m^3].
     vapour_pressure_abs_pa : float
@@ -235,8 +237,9 @@ def steady_heads(
     Raises
     ------
     SimulationError
-        When two paths give a node heads that differ by more than ``tolerance_m`` (a loop whose losses
-        do not sum to zero, or two fixed heads the flows cannot join); the message names the pipe.
+        When two paths give a node heads that differ by more than ``tolerance_m`` (a loop whose
+        losses do not sum to zero, or two fixed heads the flows cannot join); the message names the
+        pipe.
     """
     up = np.asarray(pipe_upstream, dtype=np.int64)
     down = np.asarray(pipe_downstream, dtype=np.int64)

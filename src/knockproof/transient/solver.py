@@ -1,17 +1,17 @@
 """Run a transient (water-hammer) simulation on a :class:`TransientNetwork`.
 
-Method: the method of characteristics on a fixed grid with Courant number 1 in every pipe
-(Wylie & Streeter, *Fluid Transients in Systems*, 1993, ch. 3; Chaudhry, *Applied Hydraulic
-Transients*, 2014, ch. 3), quasi-steady friction, and the discrete vapour-cavity model for column
-separation (Wylie & Streeter 1993, sec. 8.4; Chaudhry 2014, ch. 11). The grid rules are in
+Method: the method of characteristics on a fixed grid with Courant number 1 in every pipe (Wylie &
+Streeter, *Fluid Transients in Systems*, 1993, ch. 3; Chaudhry, *Applied Hydraulic Transients*,
+2014, ch. 3), quasi-steady friction, and the discrete vapour-cavity model for column separation
+(Wylie & Streeter 1993, sec. 8.4; Chaudhry 2014, ch. 11). The grid rules are in
 :mod:`knockproof.transient.grid`, the node equations in :mod:`knockproof.transient.kernel`.
 
 Reporting peaks around cavities: the first cavity collapse anywhere in the network splits the run in
-two. ``node_first_peak_pressure_pa`` is each node's maximum before it (the first-cycle, Joukowsky-type
-peak); ``node_collapse_peak_pressure_pa`` is its maximum from that step on (the collapse peak). Only the
-first cavity cycle is a reliable figure: with friction, cavities along a pipe form and collapse in ways
-that depend on the grid, so later peaks are indicative (Wylie & Streeter 1993, sec. 8.4 discuss the
-model's spurious pressure spikes; Chaudhry 2014, ch. 11).
+two. ``node_first_peak_pressure_pa`` is each node's maximum before it (the first-cycle,
+Joukowsky-type peak); ``node_collapse_peak_pressure_pa`` is its maximum from that step on (the
+collapse peak). Only the first cavity cycle is a reliable figure: with friction, cavities along a
+pipe form and collapse in ways that depend on the grid, so later peaks are indicative (Wylie &
+Streeter 1993, sec. 8.4 discuss the model's spurious pressure spikes; Chaudhry 2014, ch. 11).
 
 numba is imported only when :func:`simulate` runs.
 """
@@ -31,7 +31,7 @@ from knockproof.transient.grid import choose_grid
 from knockproof.transient.network import GRAVITY_M_PER_S2, TransientNetwork
 
 CAVITY_WEIGHT = 1.0
-"""``psi`` of the DVCM volume update: 1 weights the new flows fully (from memory: the usual choice)."""
+"""``psi`` of the DVCM volume update: 1 weights the new flows fully (from memory: usual choice)."""
 
 ROUND_TRIPS_IN_DEFAULT_DURATION = 20
 """:func:`default_duration_s` runs this many valve-to-supply round trips after the last closure."""
@@ -63,8 +63,8 @@ class TransientResult:
         Highest gauge pressure [Pa] up to and including the step of the first cavity collapse in the
         network (the whole run if none collapses).
     node_collapse_peak_pressure_pa : np.ndarray
-        Highest gauge pressure [Pa] from the step after the first cavity collapse on; NaN if no cavity
-        collapsed.
+        Highest gauge pressure [Pa] from the step after the first cavity collapse on; NaN if no
+        cavity collapsed.
     first_collapse_time_s : float
         Time of the first cavity collapse [s]; NaN if none.
     cavity_collapses : int
@@ -81,11 +81,13 @@ class TransientResult:
     lumped_pipes : tuple[str, ...]
         Names of the pipes lumped into their end nodes.
     final_pipe_head_m : dict[str, np.ndarray]
-        Head [m] at the computing sections of each unlumped pipe at the end of the run, upstream first.
-    stats : dict
-        Figures about the run: ``sections``, ``node_updates``, ``kernel_seconds``, ``setup_seconds``,
+        Head [m] at the computing sections of each unlumped pipe at the end of the run, upstream
+        first. stats : dict
+        Figures about the run: ``sections``, ``node_updates``, ``kernel_seconds``,
+        ``setup_seconds``,
         ``supply_volume_m3`` (volume delivered by the constant-head nodes), ``valve_volume_m3``
-        (per valve, network order), ``cavity_volume_m3`` (left at the end), ``max_cavity_volume_m3``,
+        (per valve, network order), ``cavity_volume_m3`` (left at the end),
+        ``max_cavity_volume_m3``,
         ``gas_volume_initial_m3`` and ``gas_volume_final_m3`` (per arrestor, network order).
     """
 
@@ -228,7 +230,7 @@ def simulate(
     flow0 = np.asarray(network.pipe_initial_flow_m3_per_s, float)
     supply0 = 0.0
     reservoir_groups = {int(lay.node_group[r.node]) for r in network.reservoirs}
-    for i, p in enumerate(lay.pipe_index):
+    for p in lay.pipe_index:
         if int(lay.node_group[network.pipe_upstream[p]]) in reservoir_groups:
             supply0 += flow0[p]
         if int(lay.node_group[network.pipe_downstream[p]]) in reservoir_groups:
