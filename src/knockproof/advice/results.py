@@ -36,7 +36,8 @@ class Threshold:
         The solved limit in SI (a nominal size for ``nominal_size``); ``None`` when nothing in the
         searched range keeps the peak under the limit.
     searched_from, searched_to : float or str
-        The range searched, from the building's present value to the far end of what is plausible.
+        The range searched, from the building's present value to the far end of what is plausible
+        (``None`` where no range applies).
     method : str
         How it was solved, in plain words (bisection, catalogue sizes in turn, ...).
     relative_precision : float or None
@@ -49,8 +50,8 @@ class Threshold:
     quantity: str
     bound: Bound
     value: float | str | None
-    searched_from: float | str
-    searched_to: float | str
+    searched_from: float | str | None
+    searched_to: float | str | None
     method: str
     relative_precision: float | None
     text: str

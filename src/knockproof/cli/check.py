@@ -18,6 +18,12 @@ def command(
     summary_only: bool = typer.Option(
         False, "--summary", help="Only load the building and summarise the tree (no physics)."
     ),
+    profile: str | None = typer.Option(
+        None, "--profile", help="Rule profile: a bundled name (us-default, si-default) or a file."
+    ),
+    findings: int = typer.Option(
+        5, "--findings", help="Findings shown per rule in the text report (0: all)."
+    ),
 ) -> int:
     """Check a building's water-supply tree for water hammer."""
     from knockproof.errors import UsageError
@@ -46,25 +52,34 @@ def command(
         render_summary(console, summarize(tree), building.unit_system)
         console.print(CAUTION)
         return 0
+    from knockproof.rules import review as run_review
+
     analysis = analyze_tree(tree, simultaneous=simultaneous)
+    review = run_review(tree, analysis, profile)
     if format == "json":
         from knockproof.report.json_out import analysis_to_json, dumps
+        from knockproof.rules import review_to_json
 
-        write_text(dumps(analysis_to_json(analysis)))
-        return 0
+        data = analysis_to_json(analysis)
+        data.update(review_to_json(review))
+        write_text(dumps(data))
+        return review.exit_status
     if format == "markdown":
         from knockproof.report.markdown import analysis_markdown
+        from knockproof.report.review_markdown import review_markdown
 
-        write_text(analysis_markdown(analysis))
-        return 0
+        write_text(analysis_markdown(analysis, [review_markdown(review, findings)]))
+        return review.exit_status
     from knockproof.report import terminal
+    from knockproof.report.review_text import render_review
 
     terminal.render_headline(console, analysis)
+    render_review(console, review, findings)
     terminal.render_events(console, analysis, events)
     terminal.render_pipes(console, analysis)
     terminal.render_assumptions(console, analysis)
     console.print(CAUTION)
-    return 0
+    return review.exit_status
 
 
 def example_path() -> Path:
