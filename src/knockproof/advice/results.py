@@ -1,7 +1,7 @@
 """The frozen result types of the mitigation advisor. SI inside; the unit is in each field name.
 
-Pressures are gauge [Pa]. The ``change``, ``practicality`` and ``text`` fields are plain words in the
-building's own unit system, ready to print.
+Pressures are gauge [Pa]. The ``change``, ``practicality`` and ``text`` fields are plain words in
+the building's own unit system, ready to print.
 """
 
 from __future__ import annotations

@@ -10,8 +10,8 @@ residual pressure, which the peak does not use.
 So the advisor cuts the building down to exactly that: the event's path, the first pipe of every
 other branch leaving it, the cold path that feeds a heater, and the event's own fixtures. It then
 runs the same screen (:func:`knockproof.analysis.run.analyze_tree`) on the cut-down building, with
-each candidate change applied. On the tower this takes a few milliseconds instead of a whole-building
-run, and the test suite checks that the cut-down screen gives every event's peak unchanged.
+each candidate change applied. On the tower this takes a few milliseconds instead of a whole-
+building run, and the test suite checks that the cut-down screen gives every event's peak unchanged.
 """
 
 from __future__ import annotations
@@ -29,7 +29,7 @@ from knockproof.results import Analysis, EventResult
 
 def path_to_root(tree: nx.DiGraph, node: str) -> list[tuple[str, str]]:
     """Edges (upstream, downstream) from ``node`` back to its supply, nearest first."""
-    out = []
+    out: list[tuple[str, str]] = []
     while True:
         preds = list(tree.predecessors(node))
         if not preds:
@@ -116,8 +116,12 @@ class EventScreen:
         nodes = {n for p in edges.values() for n in (p.upstream, p.downstream)} | roots
         order = {p.id: i for i, p in enumerate(b.pipes)}
         members = tuple(
-            replace(f, cold_node=f.cold_node if self.side == "cold" else None,
-                    hot_node=f.hot_node if self.side == "hot" else None, quick_closing=True)
+            replace(
+                f,
+                cold_node=f.cold_node if self.side == "cold" else None,
+                hot_node=f.hot_node if self.side == "hot" else None,
+                quick_closing=True,
+            )
             for f in self.members
         )
         return replace(
@@ -169,8 +173,11 @@ class EventScreen:
         if not group:
             ev = next(e for e in analysis.events if e.id == self.event.id)
             return Screened(ev, analysis)
-        same = [e for e in analysis.events if e.simultaneous
-                and set(e.fixtures) == set(self.event.fixtures)]
+        same = [
+            e
+            for e in analysis.events
+            if e.simultaneous and set(e.fixtures) == set(self.event.fixtures)
+        ]
         if same:
             return Screened(same[0], analysis)
         # The change split the group (its valves now reflect at different tees): take the worst.

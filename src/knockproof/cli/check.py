@@ -24,6 +24,12 @@ def command(
     findings: int = typer.Option(
         5, "--findings", help="Findings shown per rule in the text report (0: all)."
     ),
+    no_simulation: bool = typer.Option(
+        False, "--no-simulation", help="Closed-form screen only: skip the transient simulation."
+    ),
+    workers: int | None = typer.Option(
+        None, "--workers", help="Processes for the simulation (default: up to 2)."
+    ),
 ) -> int:
     """Check a building's water-supply tree for water hammer."""
     from knockproof.errors import UsageError
@@ -54,14 +60,27 @@ def command(
         return 0
     from knockproof.rules import review as run_review
 
+    from knockproof.rules.review import resolve_profile
+
+    prof = resolve_profile(profile, building.source, building.profile)
     analysis = analyze_tree(tree, simultaneous=simultaneous)
-    review = run_review(tree, analysis, profile)
+    review = run_review(tree, analysis, prof)
+    checks = []
+    if not no_simulation and analysis.events:
+        from knockproof.cli.progress import simulate_with_progress
+
+        analysis, checks = simulate_with_progress(tree, analysis, review, prof, workers)
+        review = run_review(tree, analysis, prof)
     if format == "json":
         from knockproof.report.json_out import analysis_to_json, dumps
         from knockproof.rules import review_to_json
 
+        from knockproof.report.json_out import arrestor_checks_to_json
+
         data = analysis_to_json(analysis)
         data.update(review_to_json(review))
+        data["simulation"] = {"run": not no_simulation,
+                              "arrestor_checks": arrestor_checks_to_json(checks)}
         write_text(dumps(data))
         return review.exit_status
     if format == "markdown":
@@ -76,6 +95,7 @@ def command(
     terminal.render_headline(console, analysis)
     render_review(console, review, findings)
     terminal.render_events(console, analysis, events)
+    terminal.render_arrestor_checks(console, checks, analysis.unit_system)
     terminal.render_pipes(console, analysis)
     terminal.render_assumptions(console, analysis)
     console.print(CAUTION)

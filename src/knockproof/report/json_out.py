@@ -114,3 +114,18 @@ def analysis_to_json(a: Analysis) -> dict[str, Any]:
 
 def dumps(data: dict[str, Any]) -> str:
     return json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+def arrestor_checks_to_json(checks: list[Any]) -> list[dict[str, Any]]:
+    """Simulation-verified arrestor volumes (see transient/run.py ``ArrestorCheck``)."""
+    return [
+        {
+            "arrestor": c.arrestor_id,
+            "event": c.event_id,
+            "energy_method_gas_volume_m3": _num(c.energy_method_gas_volume_m3),
+            "verified_gas_volume_m3": _num(c.verified_gas_volume_m3),
+            "simulated_peak_pressure_pa": _num(c.simulated_peak_pa),
+            "limit_pa": _num(c.limit_pa),
+        }
+        for c in checks
+    ]

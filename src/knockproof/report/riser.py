@@ -184,21 +184,40 @@ def _first_segment(label: str) -> str:
     return label.split(",")[0].strip()
 
 
+_NUMBERED = re.compile(r"^\s*([A-Za-z][\w-]*\s+\d+[A-Za-z]?)\b")
+
+
 def level_names(tree: nx.DiGraph, level_of: dict[str, int]) -> dict[int, str]:
-    """A level's name: the first part of its nodes' labels when more than half of them share it."""
-    counts: dict[int, Counter[str]] = defaultdict(Counter)
+    """A level's name: the first part of its nodes' labels (up to a comma, or a leading "word
+    number" such as "level 2") when more than half of its labelled nodes share it."""
+    counts: dict[int, tuple[Counter[str], Counter[str]]] = defaultdict(lambda: (Counter(),
+                                                                                  Counter()))
     labelled: Counter[int] = Counter()
     for n, lvl in level_of.items():
         label = str(tree.nodes[n].get("label") or "")
         if label:
             labelled[lvl] += 1
-            counts[lvl][_first_segment(label)] += 1
+            counts[lvl][0][_first_segment(label)] += 1
+            m = _NUMBERED.match(label)
+            if m:
+                counts[lvl][1][m.group(1)] += 1
     names: dict[int, str] = {}
-    for lvl, c in counts.items():
-        name, k = c.most_common(1)[0]
-        if k * 2 > labelled[lvl] and name:
-            names[lvl] = name
+    for lvl, pair in counts.items():
+        for c in pair:
+            if not c:
+                continue
+            name, k = c.most_common(1)[0]
+            if k * 2 > labelled[lvl] and name:
+                names[lvl] = name
+                break
     return names
+
+
+def _label_parts(label: str, level_name: str) -> list[str]:
+    """A label's comma-separated parts, without the level's name at its start."""
+    if level_name and label.startswith(level_name):
+        label = label[len(level_name):].lstrip(" ,;:-")
+    return [s.strip() for s in label.split(",") if s.strip()]
 
 
 _DIGITS = re.compile(r"\d+")
@@ -591,6 +610,7 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
     # Pipes.
     pipes: list[PipeLine] = []
     points: list[PointMark] = []
+    vsegs: list[tuple[float, float, float]] = []
     for n in order:
         for c in reversed(kids[n]):
             chain = c.chain
@@ -602,6 +622,8 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
                 pts = f"{x0:.1f},{y0:.1f} {x1:.1f},{y1:.1f}"
             else:
                 pts = f"{x0:.1f},{y0:.1f} {x1:.1f},{y0:.1f} {x1:.1f},{y1:.1f}"
+            if y0 != y1:
+                vsegs.append((x1, min(y0, y1), max(y0, y1)))
             surge_text = "no closure event passes" if s is None else \
                 f"highest surge {fmt(s, 'pressure', u)}"
             folded = len(chain) > 1
@@ -631,7 +653,7 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
     texts: list[TextMark] = []
     used: set[str] = set()
     shown_label: dict[str, str] = {}
-    candidates: dict[int, list[tuple[float, str, str, str]]] = defaultdict(list)
+    candidates: list[tuple[float, float, str, str, bool]] = []
     for n in order:
         d = tree.nodes[n]
         cx, cy = px(n), py(n)
@@ -664,18 +686,15 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
             fed = f", fed from {supply.fed_from}" if supply.fed_from else ""
             points.append(PointMark(cx, cy, f"supply-{supply.side}",
                                     f"supply {n}: {supply.kind} ({supply.side}){static}{fed}"))
-            texts.append(TextMark(cx - 8.0, cy + 16.0, f"{supply.kind}{static}",
-                                  f"supply {n}{fed}", "kp-t kp-tr"))
+            candidates.append((cx, cy, f"{supply.kind}{static}", f"supply {n}{fed}", True))
         for dev in d.get("devices") or ():
             points.append(PointMark(cx, cy, "device", f"{dev.kind} {dev.id} at node {n}"))
         label = str(d.get("label") or "")
-        parts = [s.strip() for s in label.split(",") if s.strip()]
         lv_name = names.get(level_of[n], "")
-        if parts and parts[0] == lv_name:
-            parts = parts[1:]
+        parts = _label_parts(label, lv_name)
         preds = list(tree.predecessors(n))
-        parent_parts = [s.strip() for s in str(tree.nodes[preds[0]].get("label") or "").split(",")
-                        ] if preds else []
+        parent_parts = _label_parts(str(tree.nodes[preds[0]].get("label") or ""), lv_name) \
+            if preds else []
         k = 0
         while k < len(parts) and k < len(parent_parts) and parts[k] == parent_parts[k]:
             k += 1
@@ -683,17 +702,8 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
         shown_label[n] = text
         parent_text = shown_label.get(preds[0], None) if preds else None
         if text and text != parent_text and supply is None:
-            candidates[row_of(n)].append((x[n], n, text, label))
-    for row_cands in candidates.values():
-        row_cands.sort(key=lambda t: t[0])
-        for i, (xn, n, text, label) in enumerate(row_cands):
-            room = _room(n, kids, offset, x)
-            if i + 1 < len(row_cands):
-                room = min(room, row_cands[i + 1][0] - xn)
-            chars = int(room * SLOT / 4.8)
-            if chars >= 4:
-                short = text if len(text) <= chars else text[:chars - 1] + "…"
-                texts.append(TextMark(px(n) + 3.0, py(n) - 17.0, short, label))
+            candidates.append((cx, cy, text, label, False))
+    texts.extend(_place_labels(candidates, vsegs, fixtures, width - MARGIN_RIGHT / 2))
     return RiserDrawing(
         width=round(width, 1), height=round(height, 1), bands=tuple(bands), pipes=tuple(pipes),
         fixtures=tuple(fixtures), arrestors=tuple(arrestors), points=tuple(points),
@@ -703,16 +713,42 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
     )
 
 
-def _room(n: str, kids: dict[str, list[_Child]], offset: dict[str, float],
-          x: dict[str, float]) -> float:
-    """Columns free to the right of a node on the strip just above its row."""
-    same = [c for c in kids[n] if c.role != "vertical"]
-    span = max((offset[c.node] for c in same), default=0.0)
-    stack = [c.node for c in same]
-    while stack:
-        m = stack.pop()
-        for c in kids[m]:
-            if c.role != "vertical":
-                span = max(span, x[c.node] - x[n])
-                stack.append(c.node)
-    return span + 0.6
+CHAR_PX = 5.0  #: width of one character of a 9 px label, on average [px]
+
+
+def _place_labels(candidates: list[tuple[float, float, str, str, bool]],
+                  vsegs: list[tuple[float, float, float]], fixtures: list[FixtureMark],
+                  right_edge: float) -> list[TextMark]:
+    """Put each label just above its node (or, for a supply, just below it), to the right, cut
+    short with an ellipsis where a pipe, a fixture or another label would be in the way.
+
+    ``candidates`` are (x, y, text, title, below) of the nodes, in pixels.
+    """
+    bin_px = 12.0
+    obstacles: dict[int, list[tuple[float, float, float, float]]] = defaultdict(list)
+
+    def block(x0: float, x1: float, y0: float, y1: float) -> None:
+        for k in range(int(y0 // bin_px), int(y1 // bin_px) + 1):
+            obstacles[k].append((x0, x1, y0, y1))
+
+    for x, y0, y1 in vsegs:
+        block(x - 2.0, x + 2.0, y0, y1)
+    for f in fixtures:
+        block(f.x - 7.0, f.x + 7.0, f.y + 2.0, f.y + 21.0)
+    out: list[TextMark] = []
+    for x, y, text, title, below in sorted(candidates, key=lambda c: (c[1], c[0])):
+        start = x - 4.0 if below else x + 3.0
+        baseline = y + 20.0 if below else y - 18.0
+        top, bottom = baseline - 8.0, baseline + 2.0
+        limit = right_edge
+        for k in range(int(top // bin_px), int(bottom // bin_px) + 1):
+            for lo, hi, y0, y1 in obstacles.get(k, ()):
+                if hi > start and y0 < bottom and y1 > top:
+                    limit = min(limit, lo if lo > start else start)
+        chars = min(int((limit - start - 2.0) / CHAR_PX), 48)
+        if chars < 4:
+            continue
+        short = text if len(text) <= chars else text[:chars - 1].rstrip() + "…"
+        out.append(TextMark(start, baseline, short, title))
+        block(start, start + len(short) * CHAR_PX, top, bottom)
+    return out

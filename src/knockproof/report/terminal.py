@@ -20,28 +20,45 @@ def render_events(console: Console, a: Analysis, limit: int = 12) -> None:
         title=f"Worst closure events ({len(shown)} of {len(events)}, by peak pressure)",
         title_justify="left", show_edge=False, pad_edge=False,
     )
-    t.add_column("valve")
+    t.add_column("valve", overflow="fold")
     t.add_column("where", overflow="fold", max_width=28)
     t.add_column(f"V {unit_label('velocity', u)}", justify="right")
     t.add_column("close / 2L/a ms", justify="right")
-    t.add_column(f"surge {p_unit}", justify="right")
+    simulated = any(e.simulated_peak_pressure_pa is not None for e in shown)
+    if not simulated:
+        t.add_column(f"surge {p_unit}", justify="right")
     t.add_column(f"peak {p_unit}", justify="right")
+    if simulated:
+        t.add_column(f"sim {p_unit}", justify="right")
+        t.add_column(f"w/ arr. {p_unit}", justify="right")
     for e in shown:
         peak = to_display(e.peak_pressure_pa, "pressure", u)
-        sim = e.simulated_peak_pressure_pa
-        peak_text = f"{peak:.0f}" if sim is None else (
-            f"{peak:.0f} ({to_display(sim, 'pressure', u):.0f} sim)")
+        peak_text = f"{peak:.0f}"
         t.add_row(
             escape(f"{e.fixture}:{e.side}"),
             escape(e.label or e.node),
             f"{to_display(e.velocity_m_per_s, 'velocity', u):.1f}",
             f"{e.closure_time_s * 1000:.0f} / {e.critical_time_s * 1000:.0f}"
             + (" R" if e.closure == "rapid" else ""),
-            f"{to_display(e.surge_pa, 'pressure', u):.0f}",
+            *([] if simulated else [f"{to_display(e.surge_pa, 'pressure', u):.0f}"]),
             peak_text,
+            *(
+                [_sim(e.simulated_peak_pressure_pa, u) + ("*" if e.cavity else ""),
+                 _sim(e.simulated_peak_with_arrestors_pa, u)]
+                if simulated else []
+            ),
         )
     console.print(t)
-    console.print("R = rapid closure (closure time at or under 2L/a): full Joukowsky surge.")
+    console.print("R = rapid closure (closure time at or under 2L/a): full Joukowsky surge; peak = "
+                  "closed-form estimate (static + surge).")
+    if simulated:
+        console.print("sim = simulated peak (method of characteristics, vapour cavities); "
+                      "* = a vapour cavity formed (only the first cycle's peak is reliable); "
+                      "w/ arr. = with the scheduled arrestors in place.")
+
+
+def _sim(value: float | None, u: str) -> str:
+    return "–" if value is None else f"{to_display(value, 'pressure', u):.0f}"
 
 
 def render_pipes(console: Console, a: Analysis, limit: int = 8) -> None:
@@ -78,3 +95,28 @@ def render_headline(console: Console, a: Analysis) -> None:
         line += (f"; highest estimated peak {fmt(worst.peak_pressure_pa, 'pressure', u, 0)} at "
                  f"{escape(worst.fixture)}:{worst.side}")
     console.print(line)
+
+
+def render_arrestor_checks(console: Console, checks: list, u: str, limit: int = 10) -> None:
+    """Arrestor gas volumes checked by simulation (only those that needed more than sized)."""
+    if not checks:
+        return
+    raised = [c for c in checks if c.verified_gas_volume_m3 is None or (
+        c.energy_method_gas_volume_m3 is not None
+        and c.verified_gas_volume_m3 > c.energy_method_gas_volume_m3 * 1.0001)]
+    console.print(
+        f"Arrestor sizing checked by simulation: {len(checks)} arrestors, "
+        f"{len(checks) - len(raised)} hold the peak under {fmt(checks[0].limit_pa, 'pressure', u, 0)} "
+        f"with their energy-method gas volume, {len(raised)} need more."
+    )
+    if not raised:
+        return
+    t = Table(show_edge=False, pad_edge=False)
+    for col in ("arrestor", "worst event", "sized", "needed (simulated)", "peak"):
+        t.add_column(col)
+    for c in raised[:limit]:
+        t.add_row(escape(c.arrestor_id), escape(c.event_id),
+                  fmt(c.energy_method_gas_volume_m3, "volume", u, 2),
+                  fmt(c.verified_gas_volume_m3, "volume", u, 2) if c.verified_gas_volume_m3
+                  else "none found", fmt(c.simulated_peak_pa, "pressure", u, 0))
+    console.print(t)

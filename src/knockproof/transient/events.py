@@ -18,7 +18,8 @@ reflection round trip in ``STEPS_PER_CLOSURE`` steps each.
 
 **Duration.** The closure time plus ``ROUND_TRIPS`` round trips of the event's reflection length
 (critical time 2L/a), at least ``MIN_AFTER_CLOSURE_S`` after the closure, plus ``CUSHION_EXTRA_S``
-with an arrestor (its gas spring rings more slowly than the bare line). A chosen rule: the first
+(an arrestor's gas spring rings more slowly than the bare line; bare and with-arrestor runs take the
+same length so that their peaks compare like with like). A chosen rule: the first
 peak comes within one round trip of the end of a rapid closure, and near the end of a slow one.
 """
 
@@ -96,9 +97,11 @@ class EventSimulation:
     arrestors: tuple[tuple[str, float], ...] = ()
 
 
-def event_duration_s(event: EventResult, with_cushion: bool) -> float:
+def event_duration_s(event: EventResult, with_cushion: bool = True) -> float:
+    """Run length [s]; the bare and the with-arrestor runs of an event take the same length so
+    that their peaks compare like with like."""
     after = max(ROUND_TRIPS * event.critical_time_s, MIN_AFTER_CLOSURE_S)
-    return event.closure_time_s + after + (CUSHION_EXTRA_S if with_cushion else 0.0)
+    return event.closure_time_s + after + CUSHION_EXTRA_S
 
 
 def _closing_members(tree: nx.DiGraph, event: EventResult) -> list[tuple[str, float, float, str]]:
