@@ -29,6 +29,7 @@ Layout (our own):
 
 from __future__ import annotations
 
+import math
 import re
 from collections import Counter, defaultdict
 from collections.abc import Sequence
@@ -552,8 +553,13 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
     # Trees side by side.
     x: dict[str, float] = {}
     whole = _Block()
-    for r in roots:
+    for i, r in enumerate(roots):
         cb = blocks.pop(r)
+        supply = tree.nodes[r].get("supply")
+        if i and supply is not None:
+            ext = float(math.ceil((len(_supply_text(supply, u)) * CHAR_PX + 14.0) / SLOT))
+            cb.add(row_of(r), -ext, 0.0)
+            cb.add(row_of(r) + 1, -ext, 0.0)
         d = 0.0
         for row, (lo_c, _hi) in cb.contour.items():
             a = whole.contour.get(row)
@@ -681,12 +687,10 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
                 f"{getattr(r, 'side', '')}{gas}; {getattr(r, 'description', '')}"))
         supply = d.get("supply")
         if supply is not None:
-            static = "" if supply.static_pressure_pa is None else \
-                f", {fmt(supply.static_pressure_pa, 'pressure', u, 0)}"
             fed = f", fed from {supply.fed_from}" if supply.fed_from else ""
             points.append(PointMark(cx, cy, f"supply-{supply.side}",
-                                    f"supply {n}: {supply.kind} ({supply.side}){static}{fed}"))
-            candidates.append((cx, cy, f"{supply.kind}{static}", f"supply {n}{fed}", True))
+                                    f"supply {n}: {_supply_text(supply, u)} ({supply.side}){fed}"))
+            candidates.append((cx, cy, _supply_text(supply, u), f"supply {n}{fed}", True))
         for dev in d.get("devices") or ():
             points.append(PointMark(cx, cy, "device", f"{dev.kind} {dev.id} at node {n}"))
         label = str(d.get("label") or "")
@@ -716,13 +720,19 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
 CHAR_PX = 5.0  #: width of one character of a 9 px label, on average [px]
 
 
+def _supply_text(supply: Any, unit_system: str) -> str:
+    if supply.static_pressure_pa is None:
+        return str(supply.kind)
+    return f"{supply.kind}, {fmt(supply.static_pressure_pa, 'pressure', unit_system, 0)}"
+
+
 def _place_labels(candidates: list[tuple[float, float, str, str, bool]],
                   vsegs: list[tuple[float, float, float]], fixtures: list[FixtureMark],
                   right_edge: float) -> list[TextMark]:
-    """Put each label just above its node (or, for a supply, just below it), to the right, cut
+    """Put each label just above its node, to the right (a supply's: below it, to the left), cut
     short with an ellipsis where a pipe, a fixture or another label would be in the way.
 
-    ``candidates`` are (x, y, text, title, below) of the nodes, in pixels.
+    ``candidates`` are (x, y, text, title, left) of the nodes, in pixels.
     """
     bin_px = 12.0
     obstacles: dict[int, list[tuple[float, float, float, float]]] = defaultdict(list)
@@ -736,19 +746,34 @@ def _place_labels(candidates: list[tuple[float, float, str, str, bool]],
     for f in fixtures:
         block(f.x - 7.0, f.x + 7.0, f.y + 2.0, f.y + 21.0)
     out: list[TextMark] = []
-    for x, y, text, title, below in sorted(candidates, key=lambda c: (c[1], c[0])):
-        start = x - 4.0 if below else x + 3.0
-        baseline = y + 20.0 if below else y - 18.0
+    for x, y, text, title, left in sorted(candidates, key=lambda c: (c[1], c[0])):
+        baseline = y + 17.0 if left else y - 18.0
         top, bottom = baseline - 8.0, baseline + 2.0
-        limit = right_edge
-        for k in range(int(top // bin_px), int(bottom // bin_px) + 1):
-            for lo, hi, y0, y1 in obstacles.get(k, ()):
-                if hi > start and y0 < bottom and y1 > top:
+        near = [o for k in range(int(top // bin_px), int(bottom // bin_px) + 1)
+                for o in obstacles.get(k, ()) if o[2] < bottom and o[3] > top]
+        if left:  # right-aligned, ending left of the node
+            end = x - 7.0
+            limit = 4.0
+            for lo, hi, _y0, _y1 in near:
+                if lo < end:
+                    limit = max(limit, hi if hi < end else end)
+            room = end - limit
+        else:
+            start = x + 3.0
+            limit = right_edge
+            for lo, hi, _y0, _y1 in near:
+                if hi > start:
                     limit = min(limit, lo if lo > start else start)
-        chars = min(int((limit - start - 2.0) / CHAR_PX), 48)
+            room = limit - start
+        chars = min(int((room - 2.0) / CHAR_PX), 48)
         if chars < 4:
             continue
         short = text if len(text) <= chars else text[:chars - 1].rstrip() + "…"
-        out.append(TextMark(start, baseline, short, title))
-        block(start, start + len(short) * CHAR_PX, top, bottom)
+        width = len(short) * CHAR_PX
+        if left:
+            out.append(TextMark(end, baseline, short, title, "kp-t kp-tr"))
+            block(end - width, end, top, bottom)
+        else:
+            out.append(TextMark(start, baseline, short, title))
+            block(start, start + width, top, bottom)
     return out

@@ -236,35 +236,126 @@ def _special_node(
 
 
 @njit(cache=True)
-def _node_pass(
+def _flat_pass(S, T, sr, thr, block_pipe, off, block_bad):  # pragma: no cover - compiled
+    """Liquid update of every section from its neighbours, block by block (see the module notes).
+
+    Pipe ends get a value too, which the nodes overwrite. ``block_bad[b]`` counts the sections of
+    block ``b`` below their threshold ``thr`` (vapour head of an interior section of a liquid pipe,
+    ``-HEAD_LIMIT_M`` elsewhere) or beyond :data:`HEAD_LIMIT_M` or not finite; returns the total.
+    """
+    n = len(sr)
+    total = 0
+    for b in range(len(block_pipe) - 1):
+        k0 = max(off[block_pipe[b]], 1)
+        k1 = min(off[block_pipe[b + 1]], n - 1)
+        nbad = 0
+        for k in range(k0, k1):
+            cp = S[k - 1]
+            cm = S[n + k + 1]
+            h = 0.5 * (cp + cm)
+            q = 0.5 * (cp - cm)
+            f = sr[k] * q * abs(q)
+            T[k] = h + q - f
+            T[n + k] = h - q + f
+            nbad += not (h >= thr[k] and h <= HEAD_LIMIT_M)
+        block_bad[b] = nbad
+        total += nbad
+    return total
+
+
+@njit(cache=True)
+def _plain_nodes(
+    S, T, g0, g1, degree, eptr, ein, eout, esgn, er, einv, gbs, gthr, gmax, gmin, gh, deferred, nd
+):  # pragma: no cover - compiled
+    """Plain liquid junctions ``g0 .. g1-1``, all of ``degree`` pipe ends; returns the new count
+    of deferred groups (a head below ``gthr`` or beyond the limit goes to the general solver)."""
+    e0 = eptr[g0]
+    if degree == 1:  # dead ends
+        for gi in range(g0, g1):
+            e = e0 + (gi - g0)
+            ce = S[ein[e]]
+            head = (0.0 + ce * einv[e]) * gbs[gi]
+            if not (head >= gthr[gi] and head <= HEAD_LIMIT_M):
+                deferred[nd] = gi
+                nd += 1
+                continue
+            s = esgn[e]
+            q = s * (ce - head)
+            T[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
+            gh[gi] = head
+            if head > gmax[gi]:
+                gmax[gi] = head
+            if head < gmin[gi]:
+                gmin[gi] = head
+    elif degree == 2:  # series junctions
+        for gi in range(g0, g1):
+            e = e0 + 2 * (gi - g0)
+            ca = S[ein[e]]
+            cb = S[ein[e + 1]]
+            head = ((0.0 + ca * einv[e]) + cb * einv[e + 1]) * gbs[gi]
+            if not (head >= gthr[gi] and head <= HEAD_LIMIT_M):
+                deferred[nd] = gi
+                nd += 1
+                continue
+            s = esgn[e]
+            q = s * (ca - head)
+            T[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
+            s = esgn[e + 1]
+            q = s * (cb - head)
+            T[eout[e + 1]] = head - s * q + s * (er[e + 1] * q * abs(q))
+            gh[gi] = head
+            if head > gmax[gi]:
+                gmax[gi] = head
+            if head < gmin[gi]:
+                gmin[gi] = head
+    else:
+        for gi in range(g0, g1):
+            e0 = eptr[gi]
+            e1 = e0 + degree
+            scb = 0.0
+            for e in range(e0, e1):
+                scb += S[ein[e]] * einv[e]
+            head = scb * gbs[gi]
+            if not (head >= gthr[gi] and head <= HEAD_LIMIT_M):
+                deferred[nd] = gi
+                nd += 1
+                continue
+            for e in range(e0, e1):
+                s = esgn[e]
+                q = s * (S[ein[e]] - head)
+                T[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
+            gh[gi] = head
+            if head > gmax[gi]:
+                gmax[gi] = head
+            if head < gmin[gi]:
+                gmin[gi] = head
+    return nd
+
+
+@njit(cache=True)
+def _general_nodes(
     step,
     t,
     dt,
     psi,
     cav_on,
-    after,
-    H,
-    Qu,
-    Qd,
-    Vc,
-    Hn,
-    Qun,
+    S,
+    T,
     n_plain,
-    class_start,
-    class_degree,
+    deferred,
+    n_deferred,
     gkind,
     gfixed,
     ghv,
     gthr,
     gbs,
+    gh,
     eptr,
-    esec,
-    enb,
-    esign,
+    ein,
+    eout,
+    esgn,
     er,
     einv,
-    cbuf,
-    deferred,
     vptr,
     vq0,
     vdh0,
@@ -287,47 +378,13 @@ def _node_pass(
     gvol,
     gnet,
     gcav,
-    gmax_first,
-    gmax_after,
+    gmax,
     gmin,
     acc,
     stats,
 ):  # pragma: no cover - compiled
-    """All nodes. Plain liquid junctions come first, in classes of equal degree; one whose head
-    falls below ``gthr`` (its vapour head, or +inf while it holds a cavity) is deferred to the
-    general solver, which also takes the reservoirs, valves and arrestors numbered after them."""
-    n_deferred = 0
-    for c in range(len(class_degree)):
-        for gi in range(class_start[c], class_start[c + 1]):
-            e0 = eptr[gi]
-            e1 = eptr[gi + 1]
-            scb = 0.0
-            for e in range(e0, e1):  # C_P or C_M of each pipe end, from the old state
-                nb = enb[e]
-                if esign[e] > 0:
-                    q = Qd[nb] if Vc[nb] != 0.0 else Qu[nb]
-                    ce = H[nb] + q - er[e] * q * abs(q)
-                else:
-                    q = Qu[nb]
-                    ce = H[nb] - q + er[e] * q * abs(q)
-                cbuf[e] = ce
-                scb += ce * einv[e]
-            head = scb * gbs[gi]
-            if not (head >= gthr[gi] and head <= HEAD_LIMIT_M):
-                deferred[n_deferred] = gi
-                n_deferred += 1
-                continue
-            for e in range(e0, e1):
-                sec = esec[e]
-                Hn[sec] = head
-                Qun[sec] = esign[e] * (cbuf[e] - head)
-            if after:
-                if head > gmax_after[gi]:
-                    gmax_after[gi] = head
-            elif head > gmax_first[gi]:
-                gmax_first[gi] = head
-            if head < gmin[gi]:
-                gmin[gi] = head
+    """The deferred plain junctions, then the reservoirs, valves and arrestors (numbered after the
+    plain junctions): the general node equations of :func:`_special_node`."""
     for v in range(len(vq0)):
         if vq0[v] > 0.0:
             tau = area_ratio(vfam[v], vexp[v], vtc[v], vt0[v], t)
@@ -342,15 +399,7 @@ def _node_pass(
         e1 = eptr[gi + 1]
         scb = 0.0
         for e in range(e0, e1):
-            nb = enb[e]
-            if esign[e] > 0:
-                q = Qd[nb] if Vc[nb] != 0.0 else Qu[nb]
-                ce = H[nb] + q - er[e] * q * abs(q)
-            else:
-                q = Qu[nb]
-                ce = H[nb] - q + er[e] * q * abs(q)
-            cbuf[e] = ce
-            scb += ce * einv[e]
+            scb += S[ein[e]] * einv[e]
         bs = gbs[gi]
         cs = scb * bs
         kind = gkind[gi]
@@ -399,38 +448,15 @@ def _node_pass(
         if kind == 1:
             supply += qv_total + (head - cs) / bs
         for e in range(e0, e1):
-            sec = esec[e]
-            Hn[sec] = head
-            Qun[sec] = esign[e] * (cbuf[e] - head)
-        if after:
-            if head > gmax_after[gi]:
-                gmax_after[gi] = head
-        elif head > gmax_first[gi]:
-            gmax_first[gi] = head
+            s = esgn[e]
+            q = s * (S[ein[e]] - head)
+            T[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
+        gh[gi] = head
+        if head > gmax[gi]:
+            gmax[gi] = head
         if head < gmin[gi]:
             gmin[gi] = head
     acc[ACC_SUPPLY] = supply
-
-
-@njit(cache=True)
-def _flat_pass(H, Qu, Hn, Qun, sr, slo):  # pragma: no cover - compiled
-    """Liquid update of every section from its neighbours (pipe ends are redone by the nodes).
-
-    Returns how many sections fell below their threshold ``slo`` (vapour head of an interior section
-    of a pipe without cavities; -HEAD_LIMIT_M elsewhere) or are not finite.
-    """
-    nbad = 0
-    for k in range(1, len(H) - 1):
-        qa = Qu[k - 1]
-        qb = Qu[k + 1]
-        r = sr[k]
-        cp = H[k - 1] + qa - r * qa * abs(qa)
-        cm = H[k + 1] - qb + r * qb * abs(qb)
-        h = 0.5 * (cp + cm)
-        Hn[k] = h
-        Qun[k] = 0.5 * (cp - cm)
-        nbad += not (h >= slo[k] and h <= HEAD_LIMIT_M)
-    return nbad
 
 
 @njit(cache=True)
@@ -440,13 +466,12 @@ def _pipe_with_cavities(
     dt,
     psi,
     cav_on,
-    H,
-    Qu,
-    Qd,
-    Hn,
-    Qun,
-    Qdn,
+    S,
+    T,
     Vc,
+    Qcu,
+    Qcd,
+    Hf,
     off,
     nre,
     bco,
@@ -460,23 +485,22 @@ def _pipe_with_cavities(
 ):  # pragma: no cover - compiled
     """DVCM update of the interior of pipe ``p``; returns its number of open (or closing) cavities.
 
-    Flows are scaled (``q = B Q``); the cavity volume uses real flows ``(qd - qu)/B``.
+    Flows are scaled (``q = B Q``); the cavity volume uses real flows ``(qd - qu)/B``. A section
+    with a cavity keeps its two flows in ``Qcu``, ``Qcd``; its outgoing characteristics use the
+    downstream-side flow for ``C+`` and the upstream-side flow for ``C-``.
     """
+    ns = len(Vc)
     n = nre[p]
     o = off[p]
     inv_b = 1.0 / bco[p]
     r = rco[p]
     count = 0
-    prev_v = 0.0  # old cavity marker of section k-1 (the pipe end holds none)
     for k in range(o + 1, o + n):
         v_old = Vc[k]
-        qa = Qd[k - 1] if prev_v != 0.0 else Qu[k - 1]
-        prev_v = v_old
         if v_old < 0.0:  # JUST_CLOSED last step: liquid now
             v_old = 0.0
-        qb = Qu[k + 1]
-        cp = H[k - 1] + qa - r * qa * abs(qa)
-        cm = H[k + 1] - qb + r * qb * abs(qb)
+        cp = S[k - 1]
+        cm = S[ns + k + 1]
         h = 0.5 * (cp + cm)
         if not (abs(h) <= HEAD_LIMIT_M):
             stats[ST_STATUS] = STATUS_PIPE_NONFINITE
@@ -486,12 +510,14 @@ def _pipe_with_cavities(
         if cav_on and (v_old > 0.0 or h < hv - 1e-6):
             qu = cp - hv
             qd = hv - cm
-            old_rate = (Qd[k] - Qu[k]) * inv_b if v_old > 0.0 else 0.0
+            old_rate = (Qcd[k] - Qcu[k]) * inv_b if v_old > 0.0 else 0.0
             vol = v_old + dt * (psi * (qd - qu) * inv_b + (1.0 - psi) * old_rate)
             if vol > 0.0:
-                Hn[k] = hv
-                Qun[k] = qu
-                Qdn[k] = qd
+                Hf[k] = hv
+                T[k] = hv + qd - r * qd * abs(qd)
+                T[ns + k] = hv - qu + r * qu * abs(qu)
+                Qcu[k] = qu
+                Qcd[k] = qd
                 Vc[k] = vol
                 count += 1
                 j = k - o
@@ -505,9 +531,11 @@ def _pipe_with_cavities(
             if v_old > 0.0:  # collapse: the step's net inflow closes the cavity exactly
                 rate = -(v_old + dt * (1.0 - psi) * old_rate) / (psi * dt)
                 h = 0.5 * (cp + cm + bco[p] * rate)
-                Hn[k] = h
-                Qun[k] = cp - h
-                Qdn[k] = h - cm
+                qu = cp - h
+                qd = h - cm
+                Hf[k] = h
+                T[k] = h + qd - r * qd * abs(qd)
+                T[ns + k] = h - qu + r * qu * abs(qu)
                 Vc[k] = JUST_CLOSED
                 count += 1  # its two flows still differ: keep the pipe on this path one more step
                 stats[ST_COLLAPSES] += 1
@@ -515,17 +543,32 @@ def _pipe_with_cavities(
                     stats[ST_FIRST_COLLAPSE] = step
                 continue
         Vc[k] = 0.0
-        Hn[k] = h
-        Qun[k] = 0.5 * (cp - cm)
+        Hf[k] = h
+        q = 0.5 * (cp - cm)
+        f = r * q * abs(q)
+        T[k] = h + q - f
+        T[ns + k] = h - q + f
     return count
 
 
 @njit(cache=True)
-def _set_threshold(p, off, nre, hv0, dhv, slo, liquid):  # pragma: no cover - compiled
+def _set_threshold(p, off, nre, hv0, dhv, thr, liquid):  # pragma: no cover - compiled
     """Thresholds of pipe p's interior: vapour heads while liquid, none while it has a cavity."""
     o = off[p]
     for k in range(o + 1, o + nre[p]):
-        slo[k] = hv0[p] + dhv[p] * (k - o) if liquid else -HEAD_LIMIT_M
+        thr[k] = hv0[p] + dhv[p] * (k - o) if liquid else -HEAD_LIMIT_M
+
+
+@njit(cache=True)
+def _flagged(p, S, thr, off, nre):  # pragma: no cover - compiled
+    """Whether a liquid section of pipe p's interior fell below its threshold (or blew up)."""
+    ns = len(thr)
+    o = off[p]
+    for k in range(o + 1, o + nre[p]):
+        h = 0.5 * (S[k - 1] + S[ns + k + 1])
+        if not (h >= thr[k] and h <= HEAD_LIMIT_M):
+            return True
+    return False
 
 
 @njit(cache=True)
@@ -534,8 +577,7 @@ def run(
     dt,
     psi,
     cav_on,
-    head0,
-    qu0,
+    state0,
     off,
     nre,
     bco,
@@ -543,7 +585,8 @@ def run(
     hv0,
     dhv,
     sr,
-    slo0,
+    thr0,
+    block_pipe,
     n_plain,
     class_start,
     class_degree,
@@ -553,11 +596,12 @@ def run(
     gbs,
     ghead0,
     eptr,
-    esec,
-    enb,
-    esign,
+    ein,
+    eout,
+    esgn,
     er,
     einv,
+    esec,
     vptr,
     vq0,
     vdh0,
@@ -588,20 +632,24 @@ def run(
 ):  # pragma: no cover - compiled
     """Advance ``n_steps`` steps of ``dt``; fill the output arrays; return the final state.
 
-    ``qu0`` and ``rco`` are scaled (``B Q`` and ``R/B^2``); ``bco`` is ``B`` per pipe.
+    ``state0`` holds the outgoing characteristics ``C+`` then ``C-`` of every section (length
+    ``2 N``); ``rco`` and ``sr`` are scaled (``R/B^2``); ``bco`` is ``B`` per pipe. ``ein`` and
+    ``eout`` index, per pipe end, the characteristic a node receives (in ``state0``'s layout) and
+    the one it sends back. Returns (section heads, arrestor gas volumes, cavity volume left).
     """
-    H = head0.copy()
-    Qu = qu0.copy()
-    Qd = qu0.copy()
-    Vc = np.zeros(len(head0))
-    Hn = head0.copy()
-    Qun = qu0.copy()
-    Qdn = qu0.copy()
-    slo = slo0.copy()
+    ns = len(sr)
+    S = state0.copy()
+    T = state0.copy()
+    Vc = np.zeros(ns)
+    Qcu = np.zeros(ns)
+    Qcd = np.zeros(ns)
+    Hf = np.zeros(ns)
+    thr = thr0.copy()
     gthr = ghv.copy()
     n_groups = len(gkind)
     n_pipes = len(off)
-    cbuf = np.zeros(len(esec))
+    n_blocks = len(block_pipe) - 1
+    block_bad = np.zeros(n_blocks, dtype=np.int64)
     deferred = np.zeros(n_groups, dtype=np.int64)
     cvb = np.zeros(len(vq0))
     vq = vq0.copy()
@@ -609,7 +657,15 @@ def run(
     aq = np.zeros(len(avol0))
     gvol = np.zeros(n_groups)
     gnet = np.zeros(n_groups)
+    gh = ghead0.copy()
     cavcount = np.zeros(n_pipes, dtype=np.int64)
+    todo = np.zeros(n_pipes, dtype=np.int64)  # pipes on the DVCM path this step
+    active = np.zeros(n_pipes, dtype=np.int64)  # pipes holding cavities (increasing)
+    n_active = 0
+    n_todo = 0
+    off_end = np.empty(n_pipes + 1, dtype=np.int64)
+    off_end[:n_pipes] = off
+    off_end[n_pipes] = ns
     stats[ST_FIRST_COLLAPSE] = -1
     for gi in range(n_groups):
         gmax_first[gi] = ghead0[gi]
@@ -618,40 +674,55 @@ def run(
     for r in range(len(rec_groups)):
         rec_out[0, r] = ghead0[rec_groups[r]]
     supply_old = acc[ACC_SUPPLY]
-    active = 0  # pipes with cavities
     for step in range(1, n_steps + 1):
         t = step * dt
-        after = stats[ST_FIRST_COLLAPSE] >= 0
-        nbad = _flat_pass(H, Qu, Hn, Qun, sr, slo)
-        _node_pass(
+        gmax = gmax_after if stats[ST_FIRST_COLLAPSE] >= 0 else gmax_first
+        nbad = _flat_pass(S, T, sr, thr, block_pipe, off_end, block_bad)
+        nd = 0
+        for c in range(len(class_degree)):
+            nd = _plain_nodes(
+                S,
+                T,
+                class_start[c],
+                class_start[c + 1],
+                class_degree[c],
+                eptr,
+                ein,
+                eout,
+                esgn,
+                er,
+                einv,
+                gbs,
+                gthr,
+                gmax,
+                gmin,
+                gh,
+                deferred,
+                nd,
+            )
+        _general_nodes(
             step,
             t,
             dt,
             psi,
             cav_on,
-            after,
-            H,
-            Qu,
-            Qd,
-            Vc,
-            Hn,
-            Qun,
+            S,
+            T,
             n_plain,
-            class_start,
-            class_degree,
+            deferred,
+            nd,
             gkind,
             gfixed,
             ghv,
             gthr,
             gbs,
+            gh,
             eptr,
-            esec,
-            enb,
-            esign,
+            ein,
+            eout,
+            esgn,
             er,
             einv,
-            cbuf,
-            deferred,
             vptr,
             vq0,
             vdh0,
@@ -674,8 +745,7 @@ def run(
             gvol,
             gnet,
             gcav,
-            gmax_first,
-            gmax_after,
+            gmax,
             gmin,
             acc,
             stats,
@@ -683,35 +753,42 @@ def run(
         if stats[ST_STATUS] != STATUS_OK:
             stats[ST_STEP] = step
             break
-        if nbad > 0 or active > 0:
-            active = 0
-            for p in range(n_pipes):
-                if nre[p] < 2:
+        n_todo = 0
+        if nbad > 0 or n_active > 0:
+            # pipes newly below their vapour head (in the flagged blocks), merged in increasing
+            # order with those holding cavities
+            i = 0
+            for b in range(n_blocks):
+                if block_bad[b] == 0:
                     continue
-                if cavcount[p] == 0:
-                    if nbad == 0:
+                for p in range(block_pipe[b], block_pipe[b + 1]):
+                    if nre[p] < 2 or cavcount[p] > 0 or not _flagged(p, S, thr, off, nre):
                         continue
-                    o = off[p]
-                    flagged = False
-                    for k in range(o + 1, o + nre[p]):
-                        if not (Hn[k] >= slo[k] and Hn[k] <= HEAD_LIMIT_M):
-                            flagged = True
-                            break
-                    if not flagged:
-                        continue
+                    while i < n_active and active[i] < p:
+                        todo[n_todo] = active[i]
+                        n_todo += 1
+                        i += 1
+                    todo[n_todo] = p
+                    n_todo += 1
+            while i < n_active:
+                todo[n_todo] = active[i]
+                n_todo += 1
+                i += 1
+            n_active = 0
+            for m in range(n_todo):
+                p = todo[m]
                 count = _pipe_with_cavities(
                     p,
                     step,
                     dt,
                     psi,
                     cav_on,
-                    H,
-                    Qu,
-                    Qd,
-                    Hn,
-                    Qun,
-                    Qdn,
+                    S,
+                    T,
                     Vc,
+                    Qcu,
+                    Qcd,
+                    Hf,
                     off,
                     nre,
                     bco,
@@ -726,10 +803,11 @@ def run(
                 if stats[ST_STATUS] != STATUS_OK:
                     break
                 if (count > 0) != (cavcount[p] > 0):
-                    _set_threshold(p, off, nre, hv0, dhv, slo, count == 0)
+                    _set_threshold(p, off, nre, hv0, dhv, thr, count == 0)
                 cavcount[p] = count
                 if count > 0:
-                    active += 1
+                    active[n_active] = p
+                    n_active += 1
         if stats[ST_STATUS] != STATUS_OK:
             stats[ST_STEP] = step
             break
@@ -738,14 +816,23 @@ def run(
         if step % rec_every == 0:
             row = step // rec_every
             for r in range(len(rec_groups)):
-                rec_out[row, r] = Hn[esec[eptr[rec_groups[r]]]]
-        H, Hn = Hn, H
-        Qu, Qun = Qun, Qu
-        Qd, Qdn = Qdn, Qd
+                rec_out[row, r] = gh[rec_groups[r]]
+        if step == n_steps:  # heads of the final state (the DVCM path wrote its pipes' own)
+            done = np.zeros(n_pipes, dtype=np.bool_)
+            for m in range(n_todo):
+                done[todo[m]] = True
+            for p in range(n_pipes):
+                if not done[p]:
+                    for k in range(off[p] + 1, off[p] + nre[p]):
+                        Hf[k] = 0.5 * (S[k - 1] + S[ns + k + 1])
+        S, T = T, S
+    for gi in range(n_groups):
+        for e in range(eptr[gi], eptr[gi + 1]):
+            Hf[esec[e]] = gh[gi]
     total_cavity = 0.0
-    for k in range(len(Vc)):
+    for k in range(ns):
         if Vc[k] > 0.0:
             total_cavity += Vc[k]
     for gi in range(n_groups):
         total_cavity += gvol[gi]
-    return H, Qu, avol, total_cavity
+    return Hf, avol, total_cavity
