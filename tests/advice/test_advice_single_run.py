@@ -1,4 +1,4 @@
-"""Each option's new peak on one run of pipe (supply -> pipe -> valve), checked against hand figures.
+"""Each option's new peak on one run of pipe (supply -> pipe -> valve), checked by hand.
 
 Every expected value here is computed in this file from published formulas and data, never taken
 from knockproof:
@@ -201,9 +201,7 @@ def test_arrestor_gas_volume_by_the_energy_method(options) -> None:
     assert "polytropic" in o.gas_compression and "1.4" in o.gas_compression
     # The stated gas holds the peak just under the limit: the energy balance at the new peak.
     r_new = (o.peak_pressure_pa + ATM) / p1
-    done = p1 * o.gas_volume_m3 * (
-        (r_new ** ((n - 1) / n) - 1) / (n - 1) - (1 - r_new ** (-1 / n))
-    )
+    done = p1 * o.gas_volume_m3 * ((r_new ** ((n - 1) / n) - 1) / (n - 1) - (1 - r_new ** (-1 / n)))
     # (knockproof's water is IAPWS-97, within 0.002 % of IAPWS-95 in density: docs/methods.md §1)
     assert done == pytest.approx(ke, rel=2e-5)
     assert o.passes and o.peak_pressure_pa <= LIMIT
@@ -265,6 +263,10 @@ def test_options_are_ranked_passing_then_cheapest_then_lowest(options) -> None:
     keys = [(not o.passes, order[o.cost], o.peak_pressure_pa) for o in ranked]
     assert keys == sorted(keys)
     assert {o.kind for o in ranked} == {
-        "larger-pipe", "slower-closure", "flexible-pipe", "lower-static", "arrestor",
+        "larger-pipe",
+        "slower-closure",
+        "flexible-pipe",
+        "lower-static",
+        "arrestor",
         "flow-restrictor",
     }

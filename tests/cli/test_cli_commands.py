@@ -13,7 +13,7 @@ GPM = 3.785411784e-3 / 60
 def test_help_lists_commands(cli):
     r = cli("--help")
     assert r.returncode == 0
-    for name in ("check", "estimate", "catalog", "schema", "new"):
+    for name in ("check", "estimate", "simulate", "advise", "catalog", "schema", "new"):
         assert name in r.stdout
     assert r.stderr == ""
 

@@ -232,7 +232,8 @@ def flexible_pipe(ctx: Context) -> tuple[Option | None, str | None]:
         )
     credited_runs = [t for t in tried if t[4]]
     length, screened, run, top, _ok = credited_runs[-1] if credited_runs else tried[-1]
-    peak = screened.event.peak_pressure_pa
+    # A run that is not credited is given no effect: the peak stays as the building stands.
+    peak = screened.event.peak_pressure_pa if credited_runs else ev.peak_pressure_pa
     rating = min(screened.analysis.pipe(q.id).pressure_rating_pa for q in run)
     in_rating = peak <= rating
     passes = bool(credited_runs) and ctx.under_limit(peak) and in_rating
@@ -246,8 +247,8 @@ def flexible_pipe(ctx: Context) -> tuple[Option | None, str | None]:
         "it needs access to the run, and support and protection as the code requires."
     )
     change = (
-        f"last {show(length, 'length', u)} in PEX ({pipe_list(ids)}, from the valve back "
-        f"to {top})"
+        f"last {show(length, 'length', u)} in PEX, {pipe_list(ids)} from the valve back "
+        f"to {top}"
         + ("" if passes else " (not credited)" if not credited_runs else " (not enough)")
     )
     note = None

@@ -360,7 +360,7 @@ def arrestor(ctx: Context) -> Option:
             False,
             "low",
             work,
-            Threshold("gas_volume_m3", "at-least", None, 0.0, None, method, None, text),
+            Threshold("gas_volume_m3", "at-least", None, None, None, method, None, text),
             gas_compression=compression,
             size_class=size,
         )
@@ -378,7 +378,7 @@ def arrestor(ctx: Context) -> Option:
         ctx.under_limit(peak),
         "low",
         work,
-        Threshold("gas_volume_m3", "at-least", volume, 0.0, volume, method, None, text),
+        Threshold("gas_volume_m3", "at-least", volume, None, None, method, None, text),
         gas_volume_m3=shown,
         gas_compression=compression,
         size_class=size,

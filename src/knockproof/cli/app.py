@@ -10,7 +10,7 @@ import sys
 
 import typer
 
-from knockproof.cli import catalog_cmd, check, estimate, new, schema, simulate_cmd
+from knockproof.cli import advise_cmd, catalog_cmd, check, estimate, new, schema, simulate_cmd
 
 app = typer.Typer(
     name="knockproof",
@@ -36,6 +36,7 @@ def _root(
 app.command("check")(check.command)
 app.command("estimate")(estimate.command)
 app.command("simulate")(simulate_cmd.command)
+app.command("advise")(advise_cmd.command)
 app.command("catalog")(catalog_cmd.command)
 app.command("schema")(schema.command)
 app.command("new")(new.command)

@@ -30,6 +30,9 @@ def command(
     workers: int | None = typer.Option(
         None, "--workers", help="Processes for the simulation (default: up to 2)."
     ),
+    advise_options: bool = typer.Option(
+        False, "--advise", help="Add the mitigation options for every event over the limit."
+    ),
 ) -> int:
     """Check a building's water-supply tree for water hammer."""
     from knockproof.errors import UsageError
@@ -71,6 +74,12 @@ def command(
 
         analysis, checks = simulate_with_progress(tree, analysis, review, prof, workers)
         review = run_review(tree, analysis, prof)
+    advice = None
+    if advise_options:
+        from knockproof.advice import advise
+
+        limit = float(prof.params("surge.peak-limit")["limit_pa"])
+        advice = advise(tree, analysis, limit_pa=limit)
     if format == "json":
         from knockproof.report.json_out import analysis_to_json, dumps
         from knockproof.rules import review_to_json
@@ -81,6 +90,12 @@ def command(
         data.update(review_to_json(review))
         data["simulation"] = {"run": not no_simulation,
                               "arrestor_checks": arrestor_checks_to_json(checks)}
+        if advice is not None:
+            from knockproof.advice import advice_to_json
+
+            by_event = {a["event"]: a["options"] for a in advice_to_json(advice)}
+            for e in data["events"]:
+                e["options"] = by_event.get(e["id"], [])
         write_text(dumps(data))
         return review.exit_status
     if format == "markdown":
@@ -96,6 +111,13 @@ def command(
     render_review(console, review, findings)
     terminal.render_events(console, analysis, events)
     terminal.render_arrestor_checks(console, checks, analysis.unit_system)
+    if advice is not None:
+        from knockproof.report.advice_text import render_advice
+
+        shown = advice[:events] if events > 0 else advice
+        render_advice(console, shown, analysis.building_name,
+                      float(prof.params("surge.peak-limit")["limit_pa"]), analysis.unit_system,
+                      len(advice) - len(shown))
     terminal.render_pipes(console, analysis)
     terminal.render_assumptions(console, analysis)
     console.print(CAUTION)

@@ -3,10 +3,10 @@ columns and without colour (NO_COLOR is honoured by the console helper)."""
 
 from __future__ import annotations
 
+import textwrap
 from collections.abc import Sequence
 
 from rich.console import Console
-from rich.padding import Padding
 from rich.text import Text
 
 from knockproof.advice.advisor import ADVICE_CAUTION
@@ -19,23 +19,28 @@ def _p(value_pa: float, unit_system: str) -> str:
     return fmt(value_pa, "pressure", unit_system, 0)
 
 
-def _indented(console: Console, text: Text | str, left: int) -> None:
-    body = text if isinstance(text, Text) else Text(text)
-    console.print(Padding(body, (0, 0, 0, left), expand=False))
+def _indented(console: Console, text: str, left: int, style: str | None = None) -> None:
+    """Print ``text`` wrapped to the console's width, every line indented by ``left`` columns.
+
+    Wrapped here (not by rich) so that no line carries trailing blanks and none passes the width.
+    """
+    width = max(20, console.width - left)
+    for line in textwrap.wrap(text, width=width, break_on_hyphens=False) or [""]:
+        console.print(Text(" " * left + line, style=style or ""), soft_wrap=True)
 
 
 def _option(console: Console, number: int, o: Option, u: str) -> None:
-    head = Text(f"{number}. ")
+    head = Text(f"  {number}. ")
     head.append(o.kind, style="bold")
     head.append(f" · {o.cost} cost · new peak {_p(o.peak_pressure_pa, u)} · ")
     head.append(
         "passes" if o.passes else "does not pass", style="bold green" if o.passes else "bold red"
     )
-    _indented(console, head, 2)
-    _indented(console, Text(o.change, style="bold"), 5)
+    console.print(head, soft_wrap=True)
+    _indented(console, o.change, 5, "bold")
     _indented(console, o.practicality, 5)
     if o.threshold is not None:
-        _indented(console, Text("Solved: " + o.threshold.text + ".", style="italic"), 5)
+        _indented(console, "Solved: " + o.threshold.text + ".", 5, "italic")
 
 
 def render_event(console: Console, a: EventAdvice) -> None:
@@ -44,7 +49,7 @@ def render_event(console: Console, a: EventAdvice) -> None:
     title = Text(a.event, style="bold")
     where = a.label or a.node
     title.append(f"  {where} ({a.kind}, {a.side})")
-    console.print(title)
+    console.print(title, soft_wrap=True)
     over = a.peak_pressure_pa - a.limit_pa
     state = (
         f"over {_p(a.limit_pa, u)} by {_p(over, u)}"
@@ -74,15 +79,18 @@ def render_advice(
 ) -> None:
     """The whole text report of ``knockproof advise``; ``not_shown`` events over the limit were
     left out by ``--events``."""
-    head = Text("Options to keep closure surges under ", style="bold")
-    head.append(_p(limit_pa, unit_system), style="bold")
-    head.append(f": {building_name}", style="bold")
-    console.print(head)
-    console.print(
-        "Each option is the smallest change of its kind that the closed-form screen, "
-        "re-run on the changed building, shows passing; best first (passing, then "
-        "cheapest, then lowest peak).",
-        soft_wrap=False,
+    _indented(
+        console,
+        f"Options to keep closure surges under {_p(limit_pa, unit_system)}: {building_name}",
+        0,
+        "bold",
+    )
+    _indented(
+        console,
+        "Each option is the smallest change of its kind that the closed-form screen, re-run on "
+        "the changed building, shows passing; best first (passing, then cheapest, then lowest "
+        "peak).",
+        0,
     )
     console.print()
     if not advice:
@@ -98,5 +106,5 @@ def render_advice(
             "not shown (--events 0 shows all)."
         )
         console.print()
-    console.print(ADVICE_CAUTION)
-    console.print(CAUTION)
+    _indented(console, ADVICE_CAUTION, 0)
+    _indented(console, CAUTION, 0)

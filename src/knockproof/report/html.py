@@ -148,8 +148,83 @@ def _rule_title(rule_id: str) -> str:
         return ""
 
 
-def findings_context(review: Any) -> list[dict[str, Any]]:
-    """Findings by rule (errors first); alike findings (the same but for numbers) shown once."""
+def _ranges(numbers: list[int]) -> str:
+    spans: list[list[int]] = []
+    for k in sorted(set(numbers)):
+        if spans and k == spans[-1][1] + 1:
+            spans[-1][1] = k
+        else:
+            spans.append([k, k])
+    return ", ".join(f"{a}" if a == b else f"{a}–{b}" for a, b in spans)
+
+
+def summarize_places(descriptions: list[str], limit: int = ALIKE_NAMED) -> tuple[str, int]:
+    """Places that differ only in one number, written once with the numbers as ranges: e.g.
+    "floor 3–24, unit A, kitchen". Returns the text (at most ``limit`` patterns) and how many
+    patterns were left out."""
+    patterns: dict[str, list[int] | None] = OrderedDict()
+    for d in descriptions:
+        if not d:
+            continue
+        numbers = re.findall(r"\d+", d)
+        key = re.sub(r"\d+", "#", d)
+        if key not in patterns:
+            patterns[key] = []
+        found = patterns[key]
+        if len(numbers) == 1 and found is not None:
+            found.append(int(numbers[0]))
+        elif key != d:
+            patterns[key] = None
+        else:
+            patterns[key] = []
+    parts = []
+    for key, numbers in patterns.items():
+        if numbers:
+            parts.append(key.replace("#", _ranges(numbers)))
+        elif numbers is None:
+            parts.append(f"{key} (several)")
+        else:
+            parts.append(key)
+    return "; ".join(parts[:limit]), max(0, len(parts) - limit)
+
+
+def _finding_key(f: Any) -> tuple[str, str]:
+    """What must match for two findings to be shown as one: the text with the place's own words
+    (description, node, fixture, event) and every number taken out."""
+    where = _get(f, "where", {}) or {}
+    texts = []
+    for name in ("message", "recommendation"):
+        text = str(_get(f, name, ""))
+        for k in ("description", "node", "fixture", "event", "pipe", "arrestor"):
+            v = str(where.get(k, "") or "")
+            if len(v) > 1:
+                text = text.replace(v, "{" + k + "}")
+        texts.append(_norm(text))
+    return texts[0], texts[1]
+
+
+_KIND_OF_UNIT = {"Pa": "pressure", "m/s": "velocity", "m": "length", "m3": "volume"}
+
+
+def _spread(members: list[Any], unit_system: str) -> str:
+    """The range of the measured values of alike findings, in the display unit ("" if none)."""
+    if len(members) < 2:
+        return ""
+    unit = str(_get(members[0], "unit", "") or "")
+    kind = _KIND_OF_UNIT.get(unit)
+    values = [float(v) for v in (_get(m, "measured") for m in members)
+              if v is not None and math.isfinite(v)]
+    if kind is None or len(values) < 2:
+        return ""
+    digits = 2 if kind in ("velocity", "volume") else 1
+    lo = fmt(min(values), kind, unit_system, digits)
+    hi = fmt(max(values), kind, unit_system, digits)
+    return "" if lo == hi else f"found from {lo} to {hi}"
+
+
+def findings_context(review: Any, unit_system: str) -> list[dict[str, Any]]:
+    """Findings by rule (errors first); alike findings (the same but for the place and the
+    numbers) shown once, with the places they also apply to."""
     if review is None:
         return []
     by_rule: dict[str, list[Any]] = OrderedDict()
@@ -160,23 +235,25 @@ def findings_context(review: Any) -> list[dict[str, Any]]:
         severity = str(_get(items[0], "severity", "info"))
         groups: dict[tuple[str, str], list[Any]] = OrderedDict()
         for f in items:
-            key = (_norm(str(_get(f, "message", ""))), _norm(str(_get(f, "recommendation", ""))))
-            groups.setdefault(key, []).append(f)
+            groups.setdefault(_finding_key(f), []).append(f)
         rows = []
         for members in groups.values():
             first = members[0]
             where = dict(_get(first, "where", {}) or {})
-            others = [str((_get(m, "where", {}) or {}).get("description", "")) for m in members[1:]]
-            named = [o for o in others if o][:ALIKE_NAMED]
+            others = [str((_get(m, "where", {}) or {}).get("description", "")
+                          or (_get(m, "where", {}) or {}).get("node", "")) for m in members[1:]]
+            named, more = summarize_places(others)
+            spread = _spread(members, unit_system)
             rows.append({
+                "spread": spread,
                 "where": where.get("description", "") or where.get("node", ""),
                 "ids": ", ".join(f"{k} {v}" for k, v in where.items()
                                  if k in ("node", "pipe", "event", "arrestor") and v),
                 "message": str(_get(first, "message", "")),
                 "recommendation": str(_get(first, "recommendation", "")),
                 "alike": len(members) - 1,
-                "alike_named": "; ".join(named),
-                "alike_more": max(0, len(members) - 1 - len(named)),
+                "alike_named": named,
+                "alike_more": more,
             })
         sections.append({"rule": rule_id, "title": _rule_title(rule_id), "severity": severity,
                          "count": len(items), "rows": rows})
@@ -204,19 +281,34 @@ def worst_events(analysis: Analysis) -> list[EventResult]:
 
 
 def events_context(analysis: Analysis) -> dict[str, Any]:
+    """The worst events; events alike (same kind, side and values) are one row with a count."""
     u = analysis.unit_system
-    rows = []
     simulated = any(e.simulated_peak_pressure_pa is not None for e in analysis.events)
-    for e in worst_events(analysis)[:EVENTS_LISTED]:
+    groups: dict[tuple[str, ...], list[EventResult]] = OrderedDict()
+    for e in worst_events(analysis):
+        key = (e.kind, e.side, e.closure, fmt(e.peak_pressure_pa, "pressure", u),
+               fmt(e.surge_pa, "pressure", u), fmt(e.static_pressure_pa, "pressure", u),
+               fmt(e.simulated_peak_pressure_pa, "pressure", u))
+        if key not in groups and len(groups) == EVENTS_LISTED:
+            continue
+        groups.setdefault(key, []).append(e)
+    rows = []
+    for members in groups.values():
+        e = members[0]
+        places, more = summarize_places([m.label or m.fixture for m in members[1:]], 3)
         rows.append({
             "where": e.label or e.fixture, "fixture": e.fixture, "side": e.side, "kind": e.kind,
-            "closure": f"{fmt(e.closure_time_s, 'time', u, 0)} / {fmt(e.critical_time_s, 'time', u, 1)}",
+            "count": len(members), "also": places + (f"; and {more} more" if more else ""),
+            "closure": f"{fmt(e.closure_time_s, 'time', u, 0)} / "
+                       f"{fmt(e.critical_time_s, 'time', u, 1)}",
             "rapid": e.closure, "velocity": fmt(e.velocity_m_per_s, "velocity", u, 2),
-            "surge": fmt(e.surge_pa, "pressure", u), "static": fmt(e.static_pressure_pa, "pressure", u),
+            "surge": fmt(e.surge_pa, "pressure", u),
+            "static": fmt(e.static_pressure_pa, "pressure", u),
             "peak": fmt(e.peak_pressure_pa, "pressure", u),
             "simulated": fmt(e.simulated_peak_pressure_pa, "pressure", u),
         })
-    return {"rows": rows, "simulated": simulated, "total": len(analysis.events)}
+    return {"rows": rows, "simulated": simulated, "total": len(analysis.events),
+            "grouped": any(r["count"] > 1 for r in rows)}
 
 
 def plots_context(analysis: Analysis, review: Any, simulations: Mapping[str, Any] | None
@@ -275,16 +367,18 @@ def schedule_context(tree: nx.DiGraph, analysis: Analysis, review: Any) -> dict[
         first = members[0]
         gas = [g for g in (_get(m, "gas_volume_m3") for m in members) if g is not None]
         dist = [float(_get(m, "distance_from_valve_m", 0.0) or 0.0) for m in members]
+        places, more = summarize_places([str(_get(m, "description", "")) for m in members], 4)
+        protects = [", ".join(str(p) for p in (_get(m, "protects", ()) or ())) for m in members]
         rows.append({
             "ids": _id_span([str(_get(m, "id", "")) for m in members]),
             "count": len(members),
-            "where": str(_get(first, "description", "")),
-            "node": str(_get(first, "node", "")),
+            "where": places + (f"; and {more} more" if more else ""),
+            "node": _id_span([str(_get(m, "node", "")) for m in members]),
             "side": str(_get(first, "side", "")),
             "size_class": str(_get(first, "size_class", "")),
             "gas": _span(gas, "volume", u, 2) if gas else "none holds the limit",
             "distance": _span(dist, "length", u, 1),
-            "protects": ", ".join(str(p) for p in (_get(first, "protects", ()) or ())),
+            "protects": _id_span(protects),
             "position": str(_get(first, "position", "") or "").replace("-", " "),
         })
     counts = dict(_get(review, "counts_by_size", {}) or {})
@@ -337,11 +431,14 @@ def _id_span(ids: list[str]) -> str:
 def report_context(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
                    simulations: Mapping[str, Any] | None = None) -> dict[str, Any]:
     """Every value the template shows, formatted, texts unescaped (the template escapes)."""
-    from knockproof.report.riser import SYMBOL_NAMES, build_riser
+    from knockproof.report.riser import SYMBOL_NAMES, build_risers
 
     u = analysis.unit_system
-    drawing = build_riser(tree, analysis, review)
-    riser_svg = environment().get_template("riser.svg").render(d=drawing)
+    drawings = build_risers(tree, analysis, review)
+    template = environment().get_template("riser.svg")
+    panels = [{"caption": d.caption, "svg": _markup(template.render(d=d))} for d in drawings]
+    drawing = drawings[0]
+    used = {s for d in drawings for s in d.symbols_used}
     return {
         "title": f"Water-hammer screening: {analysis.building_name}",
         "building": analysis.building_name,
@@ -352,11 +449,13 @@ def report_context(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
         "caution": CAUTION,
         "verdict": verdict_context(analysis, review),
         "figures": key_figures(tree, analysis),
-        "findings": findings_context(review),
+        "findings": findings_context(review, u),
         "reviewed": review is not None,
-        "riser": _markup(riser_svg),
+        "panels": panels,
         "drawing": drawing,
-        "symbol_names": [(s, SYMBOL_NAMES[s]) for s in drawing.symbols_used],
+        "drawn_nodes": sum(d.drawn_nodes for d in drawings),
+        "figures_nodes": tree.number_of_nodes(),
+        "symbol_names": [(s, name) for s, name in SYMBOL_NAMES.items() if s in used],
         "events": events_context(analysis),
         "plots": plots_context(analysis, review, simulations),
         "simulated": bool(simulations),

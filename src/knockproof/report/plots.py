@@ -33,7 +33,8 @@ def _svg(fig: Any, salt: str) -> str:
 
     buf = io.StringIO()
     with matplotlib.rc_context({"svg.hashsalt": salt, "svg.fonttype": "none"}):
-        fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None})
+        fig.savefig(buf, format="svg",
+                    metadata={"Date": None, "Creator": None, "Format": None, "Type": None})
     text = buf.getvalue()
     start = text.index("<svg")
     text = text[start:]
@@ -42,7 +43,10 @@ def _svg(fig: Any, salt: str) -> str:
     # matplotlib's own stylesheet would apply to the whole HTML page: scope it to plots.
     text = text.replace("*{stroke-linejoin: round; stroke-linecap: butt}",
                         ".kp-plot *{stroke-linejoin: round; stroke-linecap: butt}")
-    return text
+    # Element ids such as "figure_1" repeat in every plot; keep only those referred to (clip
+    # paths and markers, whose ids the salt makes unique) so ids stay unique in the page.
+    used = set(re.findall(r'(?:url\(#|href="#)([^)"]+)', text))
+    return re.sub(r'\sid="([^"]*)"', lambda m: m.group(0) if m.group(1) in used else "", text)
 
 
 def _figure() -> tuple[Any, Any]:

@@ -45,8 +45,10 @@ LEVEL_GAP_M = 1.8  #: elevations further apart than this [m] are different level
 MIN_FOLD = 3  #: alike consecutive levels needed before they fold into one drawn level
 SLOT = 16.0  #: px per column
 ROW = 30.0  #: px per row
-MARGIN_LEFT = 128.0  #: px for the level names
+MARGIN_LEFT = 140.0  #: px for the level names
 MARGIN_RIGHT = 24.0
+MAX_PANEL_PX = 1500.0  #: wider than this, each supply's tree gets its own panel
+FIT_MAX_PX = 2200.0  #: panels up to this width scale to the page; wider ones scroll
 BAND_TOP = 24.0  #: px above a level's first row (labels)
 FOLD_HEIGHT = 42.0  #: px of a band standing for folded levels
 
@@ -164,6 +166,13 @@ class RiserDrawing:
     symbols_used: tuple[str, ...]
     drawn_nodes: int
     total_nodes: int
+    caption: str = ""
+    note_x: float = MARGIN_LEFT + 1.5 * SLOT + 6.0
+
+    @property
+    def fits(self) -> bool:
+        """Narrow enough to be scaled to the page's width (else it scrolls at its own size)."""
+        return self.width <= FIT_MAX_PX
 
 
 # ----------------------------------------------------------------------------- levels and names
@@ -258,7 +267,7 @@ def level_signatures(tree: nx.DiGraph, level_of: dict[str, int],
             if level_of[c] == lvl:
                 inside.append((p, sig[c]))
             else:
-                ports.append(p)
+                ports.append(p[4])  # a level's way up or down: its side, not its size
         sig[n] = (node_sig(n), tuple(inside), tuple(ports))
     out: dict[int, list[tuple[Any, ...]]] = defaultdict(list)
     for n in _dfs_order(tree):
@@ -318,22 +327,28 @@ _NAMED = re.compile(r"^(?P<word>.*?\S)\s+(?P<num>\d+)$")
 
 
 def fold_note(fold: Fold, names: dict[int, str], elevation: dict[int, float],
-              unit_system: str) -> tuple[str, str]:
-    """(short title, note) of a fold, e.g. ("floors 3–12", "floors 3–12 alike: floor 2 drawn")."""
+              unit_system: str) -> tuple[str, str, str]:
+    """(title, note, span) of a fold, e.g. ("floors 3–12", "floors 3–12 alike: floor 2 drawn",
+    "floors 2–12")."""
     hidden = [lv for lv in fold.levels if lv != fold.drawn]
     drawn_name = names.get(fold.drawn, "")
     matches = [_NAMED.match(names.get(lv, "")) for lv in fold.levels]
     if all(matches) and len({m.group("word") for m in matches if m}) == 1:
         word = matches[0].group("word") if matches[0] else ""
         num = {lv: int(m.group("num")) for lv, m in zip(fold.levels, matches, strict=True) if m}
-        parts = [f"{num[a]}" if a == b else f"{num[a]}–{num[b]}" for a, b in _ranges(hidden)]
-        plural = word + ("s" if len(hidden) > 1 and not word.endswith("s") else "")
-        title = f"{plural} {', '.join(parts)}"
-        return title, f"{title} alike: {drawn_name} drawn"
+
+        def spell(levels: Sequence[int]) -> str:
+            parts = [f"{num[a]}" if a == b else f"{num[a]}–{num[b]}" for a, b in _ranges(levels)]
+            many = len(levels) > 1 and not word.endswith("s")
+            return f"{word}{'s' if many else ''} {', '.join(parts)}"
+
+        title = spell(hidden)
+        return title, f"{title} alike: {drawn_name} drawn", spell(fold.levels)
     lows = [fmt(elevation[a], "length", unit_system, 0) for a, _b in _ranges(hidden)]
     title = f"{len(hidden)} levels alike"
     where = drawn_name or f"the level at el. {fmt(elevation[fold.drawn], 'length', unit_system, 0)}"
-    return title, f"{len(hidden)} levels (from el. {', '.join(lows)}) alike: {where} drawn"
+    return (title, f"{len(hidden)} levels (from el. {', '.join(lows)}) alike: {where} drawn",
+            f"{len(fold.levels)} alike levels")
 
 
 # ----------------------------------------------------------------------------- surge per pipe
@@ -423,17 +438,27 @@ def _visible_children(tree: nx.DiGraph, n: str, band_of: dict[str, int]) -> list
     return out
 
 
-def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
-                fold: bool = True) -> RiserDrawing:
-    """Lay the riser diagram out (see the module docstring)."""
-    u = analysis.unit_system
+@dataclass(frozen=True)
+class _Plan:
+    """What every panel of one building shares: levels, names, folds, bands, shading."""
+
+    recommended: dict[str, list[Any]]
+    level_of: dict[str, int]
+    names: dict[int, str]
+    elevation: dict[int, float]
+    pipe_surge: dict[tuple[str, str], float]
+    fold_of: dict[int, Fold]
+    band_specs: list[tuple[str, Any]]
+    band_of: dict[str, int]
+
+
+def _plan(tree: nx.DiGraph, analysis: Analysis, review: Any, fold: bool) -> _Plan:
     recommended: dict[str, list[Any]] = defaultdict(list)
     for r in getattr(review, "arrestors", None) or ():
         node = getattr(r, "node", None)
         if node in tree:
             recommended[node].append(r)
     level_of = assign_levels(tree)
-    names = level_names(tree, level_of)
     elevation: dict[int, float] = {}
     for n, lv in level_of.items():
         e = float(tree.nodes[n]["elevation_m"])
@@ -445,10 +470,9 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
         peak_by_level[lv] = max(peak_by_level.get(lv, p), p)
     folds = (find_folds(level_signatures(tree, level_of, recommended), peak_by_level)
              if fold else [])
-
     # Bands from the top of the page down: drawn levels and fold bands.
     fold_of = {lv: f for f in folds for lv in f.levels}
-    band_specs: list[tuple[str, int | Fold]] = []  # ("level", lv) or ("fold", Fold)
+    band_specs: list[tuple[str, Any]] = []  # ("level", level) or ("fold", Fold)
     for lv in sorted(set(level_of.values()), reverse=True):
         f = fold_of.get(lv)
         if f is None:
@@ -458,9 +482,45 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
             band_specs.append(("level", f.drawn))
     band_index = {spec[1]: i for i, spec in enumerate(band_specs) if spec[0] == "level"}
     band_of = {n: band_index[lv] for n, lv in level_of.items() if lv in band_index}
+    return _Plan(recommended, level_of, level_names(tree, level_of), elevation, pipe_surge,
+                 fold_of, band_specs, band_of)
 
-    roots = [r for r in (tree.graph.get("roots") or []) if r in tree] or \
+
+def _roots(tree: nx.DiGraph) -> list[str]:
+    return [r for r in (tree.graph.get("roots") or []) if r in tree] or \
         [n for n in tree if tree.in_degree(n) == 0]
+
+
+def build_risers(tree: nx.DiGraph, analysis: Analysis, review: Any = None, fold: bool = True,
+                 max_width_px: float = MAX_PANEL_PX) -> list[RiserDrawing]:
+    """The riser diagram as one panel, or one panel per supply when one would be wider than
+    ``max_width_px`` (every panel has the same levels and folds, so they read side by side)."""
+    plan = _plan(tree, analysis, review, fold)
+    roots = _roots(tree)
+    whole = _draw(tree, analysis, plan, roots, "")
+    if whole.width <= max_width_px or len(roots) == 1:
+        return [whole]
+    out = []
+    for r in roots:
+        supply = tree.nodes[r].get("supply")
+        side = getattr(supply, "side", tree.nodes[r].get("side", ""))
+        kind = getattr(supply, "kind", "supply")
+        out.append(_draw(tree, analysis, plan, [r], f"{side} water, from the {kind} at node {r}"))
+    return out
+
+
+def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
+                fold: bool = True) -> RiserDrawing:
+    """The whole riser diagram as one panel (see the module docstring)."""
+    return _draw(tree, analysis, _plan(tree, analysis, review, fold), _roots(tree), "")
+
+
+def _draw(tree: nx.DiGraph, analysis: Analysis, plan: _Plan, roots: list[str],
+          caption: str) -> RiserDrawing:
+    u = analysis.unit_system
+    recommended, level_of, names = plan.recommended, plan.level_of, plan.names
+    elevation, pipe_surge, fold_of = plan.elevation, plan.pipe_surge, plan.fold_of
+    band_specs, band_of = plan.band_specs, plan.band_of
 
     # Children, roles and sub-rows.
     kids: dict[str, list[_Child]] = {}
@@ -599,9 +659,11 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
         if spec[0] == "fold":
             f = spec[1]
             assert isinstance(f, Fold)
-            title, note = fold_note(f, names, elevation, u)
+            title, note, _span = fold_note(f, names, elevation, u)
             fold_notes.append(note)
-            bands.append(Band(band_y[b], h, title, "folded", True, note))
+            drawn_name = names.get(f.drawn) or "the level"
+            bands.append(Band(band_y[b], h, title, "folded", True,
+                              f"alike: {drawn_name} drawn below"))
         else:
             lv = spec[1]
             assert isinstance(lv, int)
@@ -609,9 +671,8 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
             title = names.get(lv) or el
             sub = el if names.get(lv) else ""
             f = fold_of.get(lv)
-            if f is not None:
-                sub = (sub + " · " if sub else "") + f"drawn for {len(f.levels)} alike"
-            bands.append(Band(band_y[b], h, title, sub, False))
+            stands = f"drawn for {fold_note(f, names, elevation, u)[2]}" if f is not None else ""
+            bands.append(Band(band_y[b], h, title, sub, False, stands))
 
     # Pipes.
     pipes: list[PipeLine] = []
@@ -713,7 +774,8 @@ def build_riser(tree: nx.DiGraph, analysis: Analysis, review: Any = None,
         fixtures=tuple(fixtures), arrestors=tuple(arrestors), points=tuple(points),
         texts=tuple(texts), steps=shade_steps(u), fold_notes=tuple(fold_notes),
         symbols_used=tuple(s for s in SYMBOL_NAMES if s in used), drawn_nodes=len(order),
-        total_nodes=tree.number_of_nodes(),
+        total_nodes=sum(1 for r in roots for _n in nx.dfs_preorder_nodes(tree, r)),
+        caption=caption,
     )
 
 

@@ -104,10 +104,37 @@ def event_duration_s(event: EventResult, with_cushion: bool = True) -> float:
     return event.closure_time_s + after + CUSHION_EXTRA_S
 
 
-def _closing_members(tree: nx.DiGraph, event: EventResult) -> list[tuple[str, float, float, str]]:
+@dataclass
+class _Cache:
+    """Per (tree, analysis) lookups, built once: thousands of events reuse them."""
+
+    fixtures: dict
+    pipes: dict
+    nodes: dict
+    adjacency: dict  # node -> list of (neighbour, (u, v), travel time [s])
+
+
+def _cache(tree: nx.DiGraph, analysis: Analysis) -> _Cache:
+    key = id(analysis)
+    found = tree.graph.get("_transient_cache")
+    if found is not None and found[0] == key:
+        return found[1]
+    pipes = {p.id: p for p in analysis.pipes}
+    adjacency: dict[str, list] = {n: [] for n in tree.nodes}
+    for u, v, p in tree.edges(data="pipe"):
+        tt = p.length_m / pipes[p.id].wave_speed_m_per_s
+        adjacency[u].append((v, (u, v), tt))
+        adjacency[v].append((u, (u, v), tt))
+    c = _Cache({f.id: f for f in tree.graph["building"].fixtures}, pipes,
+               {n.id: n for n in analysis.nodes}, adjacency)
+    tree.graph["_transient_cache"] = (key, c, analysis)
+    return c
+
+
+def _closing_members(tree: nx.DiGraph, event: EventResult,
+                     cache: _Cache) -> list[tuple[str, float, float, str]]:
     """(node, flow, closure time, law) of each valve that closes in the event."""
-    building = tree.graph["building"]
-    by_id = {f.id: f for f in building.fixtures}
+    by_id = cache.fixtures
     out = []
     for fid in event.fixtures:
         f = by_id[fid]
@@ -117,8 +144,7 @@ def _closing_members(tree: nx.DiGraph, event: EventResult) -> list[tuple[str, fl
     return out
 
 
-def _travel_times(tree: nx.DiGraph, start: str, wave: dict[tuple[str, str], float],
-                  limit: float) -> dict[str, float]:
+def _travel_times(adjacency: dict, start: str, limit: float) -> dict[str, float]:
     """Acoustic travel time from ``start`` to every node within ``limit`` (undirected)."""
     best = {start: 0.0}
     queue = [(0.0, start)]
@@ -126,10 +152,8 @@ def _travel_times(tree: nx.DiGraph, start: str, wave: dict[tuple[str, str], floa
         d, n = heapq.heappop(queue)
         if d > best.get(n, math.inf) or d > limit:
             continue
-        for m in list(tree.successors(n)) + list(tree.predecessors(n)):
-            e = (n, m) if tree.has_edge(n, m) else (m, n)
-            p = tree.edges[e]["pipe"]
-            nd = d + p.length_m / wave[e]
+        for m, _, tt in adjacency[n]:
+            nd = d + tt
             if nd < best.get(m, math.inf):
                 best[m] = nd
                 heapq.heappush(queue, (nd, m))
@@ -151,22 +175,23 @@ def build_event_network(
     building = tree.graph["building"]
     side = event.side
     rho = analysis.density_hot_kg_m3 if side == "hot" else analysis.density_cold_kg_m3
-    pipe_res = _pipe_results(analysis)
-    wave = {(u, v): pipe_res[p.id].wave_speed_m_per_s for u, v, p in tree.edges(data="pipe")}
+    cache = _cache(tree, analysis)
+    pipe_res = cache.pipes
     duration = event_duration_s(event, bool(cushions))
     if zone_travel_s is None:
         tau = event.critical_time_s / 2.0 + ZONE_MARGIN_S
         tau = min(max(tau, MIN_ZONE_TRAVEL_S), MAX_ZONE_TRAVEL_S, duration / 2.0)
     else:
         tau = zone_travel_s
-    members = _closing_members(tree, event)
+    members = _closing_members(tree, event, cache)
     dist: dict[str, float] = {}
     for node, *_ in members:
-        for n, d in _travel_times(tree, node, wave, tau).items():
+        for n, d in _travel_times(cache.adjacency, node, tau).items():
             dist[n] = min(d, dist.get(n, math.inf))
     zone_nodes = {n for n, d in dist.items() if d <= tau}
     # Pipes with their near end in the zone; their far ends join the zone.
-    edges = [(u, v) for u, v in tree.edges if u in zone_nodes or v in zone_nodes]
+    edge_set = {e for n in zone_nodes for _, e, _ in cache.adjacency[n]}
+    edges = sorted(edge_set)
     nodes = {n for e in edges for n in e}
     # Steady flow of the closing valves and the head along their paths.
     flow: dict[tuple[str, str], float] = {}
@@ -181,7 +206,7 @@ def build_event_network(
             n = preds[0]
     root = tree.nodes[members[0][0]]["root"]
     supply = tree.nodes[root]["supply"]
-    node_res = _node_results(analysis)
+    node_res = cache.nodes
     h_root = node_res[root].static_pressure_pa / (rho * G) + tree.nodes[root]["elevation_m"]
     # zone top: the zone node nearest the root on the lead valve's path
     top = members[0][0]
@@ -223,31 +248,13 @@ def build_event_network(
     for n in nodes:
         if n == top:
             continue
-        degree = tree.degree(n)
-        inside = sum(1 for e in edges if n in e)
-        if inside < degree:
+        if any(e not in edge_set for _, e, _ in cache.adjacency[n]):
             cuts.append(n)
     if cuts:
         heads = np.asarray(net.node_initial_head_m, float)
         extra = tuple(Reservoir(index[c], float(heads[index[c]])) for c in sorted(cuts))
         net = replace(net, reservoirs=tuple(net.reservoirs) + extra)
     return net, index, duration
-
-
-def _pipe_results(analysis: Analysis) -> dict:
-    cache = getattr(analysis, "_pipe_index", None)
-    if cache is None:
-        cache = {p.id: p for p in analysis.pipes}
-        object.__setattr__(analysis, "_pipe_index", cache)
-    return cache
-
-
-def _node_results(analysis: Analysis) -> dict:
-    cache = getattr(analysis, "_node_index", None)
-    if cache is None:
-        cache = {n.id: n for n in analysis.nodes}
-        object.__setattr__(analysis, "_node_index", cache)
-    return cache
 
 
 def _vapour(analysis: Analysis, side: str) -> float:
