@@ -118,3 +118,23 @@ def test_pipes_on_an_event_path_are_shaded(clinic):
     shades = Counter(p.shade for p in d.pipes)
     assert sum(v for k, v in shades.items() if k != "kp-s0") > 0
     assert len(d.pipes) == clinic.tree.number_of_edges()
+
+
+def test_alike_levels_that_hold_a_supply_are_all_drawn(tmp_path):
+    """Four identical floors, each fed by its own supply: nothing may fold a supply away."""
+    from conftest import build
+
+    parts = ['[building]\nname = "Stacked"\nunits = "si"\n[defaults]\nmaterial = "copper-L"\n']
+    for k in range(4):
+        parts.append(f'[[supply]]\nnode = "s{k}"\nkind = "tank"\nstatic_pressure = 300\n'
+                     f'elevation = {3 * k}\n'
+                     f'[[pipe]]\nid = "p{k}"\nfrom = "s{k}"\nto = "n{k}"\nlength = 5\n'
+                     f'size = "DN15"\n'
+                     f'rise = 0\nlabel = "floor {k + 1}"\n'
+                     f'[[fixture]]\nid = "w{k}"\nkind = "clothes-washer"\ncold = "n{k}"\n')
+    src = tmp_path / "stacked.toml"
+    src.write_text("\n".join(parts), encoding="utf-8")
+    b = build(src)
+    panels = build_risers(b.tree, b.analysis, b.review)
+    assert sum(p.drawn_nodes for p in panels) == b.tree.number_of_nodes()
+    assert all(p.fold_notes == () for p in panels)

@@ -10,7 +10,16 @@ import sys
 
 import typer
 
-from knockproof.cli import advise_cmd, catalog_cmd, check, estimate, new, schema, simulate_cmd
+from knockproof.cli import (
+    advise_cmd,
+    catalog_cmd,
+    check,
+    estimate,
+    new,
+    report_cmd,
+    schema,
+    simulate_cmd,
+)
 
 app = typer.Typer(
     name="knockproof",
@@ -37,6 +46,7 @@ app.command("check")(check.command)
 app.command("estimate")(estimate.command)
 app.command("simulate")(simulate_cmd.command)
 app.command("advise")(advise_cmd.command)
+app.command("report")(report_cmd.command)
 app.command("catalog")(catalog_cmd.command)
 app.command("schema")(schema.command)
 app.command("new")(new.command)

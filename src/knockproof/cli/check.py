@@ -102,7 +102,8 @@ def command(
         from knockproof.report.markdown import analysis_markdown
         from knockproof.report.review_markdown import review_markdown
 
-        write_text(analysis_markdown(analysis, [review_markdown(review, findings)]))
+        write_text(review_markdown(review, findings) + "\n" + analysis_markdown(analysis,
+                                                                                header=False))
         return review.exit_status
     from knockproof.report import terminal
     from knockproof.report.review_text import render_review

@@ -18,7 +18,14 @@ def command(
         None, "--schedule", help="Also write the site schedule: NAME.csv or NAME.json.",
         show_default=False,
     ),
-    example: bool = typer.Option(False, "--example", help="Report on the bundled example building."),
+    example: bool = typer.Option(
+        False, "--example", help="Report on the bundled example building."
+    ),
+    no_simulation: bool = typer.Option(
+        False, "--no-simulation", help="Closed-form screen only: no simulated peaks or traces."
+    ),
+    profile: str | None = typer.Option(None, "--profile", help="Rule profile (name or file)."),
+    workers: int | None = typer.Option(None, "--workers", help="Processes for the simulation."),
 ) -> int:
     """Write a self-contained HTML report (verdict, findings, riser diagram, plots, schedule)."""
     from knockproof.errors import UsageError
@@ -52,12 +59,22 @@ def command(
 
     building = load_building(path)
     tree = build_tree(building)
+    from knockproof.rules import review as run_review
+    from knockproof.rules.review import resolve_profile
+
+    prof = resolve_profile(profile, building.source, building.profile)
     analysis = analyze_tree(tree)
-    review = _review(tree, analysis)
-    if schedule is not None and review is None:
-        raise UsageError("--schedule: the schedule comes from the rule engine, which is not "
-                         "available in this installation")
-    html = render_html(tree, analysis, review)
+    review = run_review(tree, analysis, prof)
+    simulations = None
+    if not no_simulation and analysis.events:
+        from knockproof.cli.progress import simulate_with_progress
+        from knockproof.report.html import plotted_events
+        from knockproof.transient.run import traces_for
+
+        analysis, _checks = simulate_with_progress(tree, analysis, review, prof, workers)
+        review = run_review(tree, analysis, prof)
+        simulations = traces_for(tree, analysis, plotted_events(analysis), review.arrestors)
+    html = render_html(tree, analysis, review, simulations)
     write_atomic(output, html)
     console = out()
     console.print(f"Wrote {output} ({len(html.encode('utf-8')) / 1e3:,.0f} kB).", markup=False,
@@ -80,15 +97,6 @@ def command(
     console.print(f"Verdict: {verdict}.", markup=False, highlight=False)
     console.print(CAUTION, markup=False, highlight=False)
     return 1 if verdict == "fail" else 0
-
-
-def _review(tree: Any, analysis: Any) -> Any:
-    """The rule engine's review, or None when the engine is not installed."""
-    try:
-        from knockproof.rules import review
-    except (ImportError, AttributeError):
-        return None
-    return review(tree, analysis)
 
 
 def _same(a: Path, b: Path) -> bool:

@@ -16,6 +16,9 @@ def write_atomic(path: Path | str, text: str | bytes) -> None:
         data = text.encode("utf-8") if isinstance(text, str) else text
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes 0600; give the file the usual permissions
         os.replace(tmp, target)
     except BaseException:
         try:

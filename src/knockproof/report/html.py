@@ -178,10 +178,10 @@ def summarize_places(descriptions: list[str], limit: int = ALIKE_NAMED) -> tuple
         else:
             patterns[key] = []
     parts = []
-    for key, numbers in patterns.items():
-        if numbers:
-            parts.append(key.replace("#", _ranges(numbers)))
-        elif numbers is None:
+    for key, nums in patterns.items():
+        if nums:
+            parts.append(key.replace("#", _ranges(nums)))
+        elif nums is None:
             parts.append(f"{key} (several)")
         else:
             parts.append(key)
@@ -292,10 +292,10 @@ def events_context(analysis: Analysis) -> dict[str, Any]:
         if key not in groups and len(groups) == EVENTS_LISTED:
             continue
         groups.setdefault(key, []).append(e)
-    rows = []
+    rows: list[dict[str, Any]] = []
     for members in groups.values():
         e = members[0]
-        places, more = summarize_places([m.label or m.fixture for m in members[1:]], 3)
+        places, more = summarize_places([m.label or m.fixture for m in members[1:]], 2)
         rows.append({
             "where": e.label or e.fixture, "fixture": e.fixture, "side": e.side, "kind": e.kind,
             "count": len(members), "also": places + (f"; and {more} more" if more else ""),
@@ -311,12 +311,8 @@ def events_context(analysis: Analysis) -> dict[str, Any]:
             "grouped": any(r["count"] > 1 for r in rows)}
 
 
-def plots_context(analysis: Analysis, review: Any, simulations: Mapping[str, Any] | None
-                  ) -> list[dict[str, Any]]:
-    """Envelope (and, when simulated, trace) plots of the worst event of each kind and side."""
-    from knockproof.report import plots
-
-    u = analysis.unit_system
+def plotted_events(analysis: Analysis) -> list[EventResult]:
+    """The events the report plots: the worst of each valve kind and side."""
     chosen: list[EventResult] = []
     seen: set[tuple[str, str]] = set()
     for e in worst_events(analysis):
@@ -327,6 +323,16 @@ def plots_context(analysis: Analysis, review: Any, simulations: Mapping[str, Any
         chosen.append(e)
         if len(chosen) == EVENTS_PLOTTED:
             break
+    return chosen
+
+
+def plots_context(analysis: Analysis, review: Any, simulations: Mapping[str, Any] | None
+                  ) -> list[dict[str, Any]]:
+    """Envelope (and, when simulated, trace) plots of the worst event of each kind and side."""
+    from knockproof.report import plots
+
+    u = analysis.unit_system
+    chosen = plotted_events(analysis)
     out = []
     for i, e in enumerate(chosen):
         limit = _event_limit(e, review)

@@ -1,30 +1,33 @@
-"""The riser diagram: the supply tree drawn as an SVG figure, floors up the page, branches across.
+"""The riser diagram: the supply tree drawn as SVG, floors up the page, branches across.
 
 This module only lays the drawing out (positions, shades, texts) as plain data; the template
-``templates/riser.svg`` turns it into SVG with every text escaped. It reads the tree, the analysis and
-the review; it computes no physics.
+``templates/riser.svg`` turns it into SVG with every text escaped. It reads the tree, the analysis
+and the review; it computes no physics.
 
-Layout (our own):
+Layout (our own; docs/report.md shows it with pictures in words):
 
 * **Levels.** Node elevations are sorted and cut wherever two neighbours are more than
   :data:`LEVEL_GAP_M` apart; each group is one level (a floor), drawn as one horizontal band, the
-  highest at the top of the page.
+  highest at the top. A level's name is the label part most of its nodes share ("floor 7").
 * **Within a level** the tree is drawn as runs and drops: a node's single same-level child (or its
   only child that has children of its own) continues the run on the same row, to the right; the
   other same-level children drop one row down, side by side, like tees off a header. A pipe that
   changes level (a riser) is drawn straight up or down from its node.
-* **Packing.** Every sub-tree is packed against its left neighbours row by row (its outline on each
-  row, as in a tidy tree drawing), so nothing overlaps and the riser of each supply stays one straight
-  line with every floor's branches beside it.
-* **Typical floors fold.** Two levels are *alike* when their pipes (size, material, length, rise),
-  fixtures (kind, side, valve), shown and recommended arrestors (class) and labels are the same once
-  every number in the labels is ignored, and the pipes entering them are alike too. A run of at least
-  :data:`MIN_FOLD` consecutive alike levels is drawn once -- the level of the run with the highest
-  peak pressure (the lowest on a tie) -- and the others fold into one narrow band with a note such
-  as "floors 3–12 alike: floor 2 drawn". Pipes passing through folded levels are drawn as one line
-  with a break mark; its shade is the highest surge of the pipes it stands for.
+* **Packing.** Every sub-tree is packed against its left neighbours row by row (its outline on
+  each row, as in a tidy tree drawing), so nothing overlaps, and each supply's riser stays one
+  straight line with every floor's branches beside it.
+* **Typical floors fold.** Two levels are *alike* when their pipes (size, material, length,
+  rise), fixtures (kind, side, valve), shown and recommended arrestors (class) and labels match
+  once every number in the labels is ignored, the pipes entering them match and they have as many
+  ways up and down. A run of at least :data:`MIN_FOLD` consecutive alike levels is drawn once --
+  the level of the run with the highest peak pressure (the lowest on a tie) -- and the others fold
+  into one narrow band above it, noted e.g. "floors 3–12 alike: floor 2 drawn". Pipes through
+  folded levels are one line with a break mark, shaded by the highest surge of the pipes they
+  stand for.
+* **Panels.** When the whole drawing would be wider than :data:`MAX_PANEL_PX`, each supply's tree
+  (cold, hot) gets its own panel, with the same bands, so the panels read side by side.
 * **Shading.** Each pipe is shaded by the highest surge (pressure rise) any closure event's path
-  puts on it (the larger of the surges at its two ends), in fixed steps of the unit system.
+  puts on it (the larger of the surges at its two ends), in fixed steps per unit system.
 """
 
 from __future__ import annotations
@@ -456,7 +459,7 @@ def _plan(tree: nx.DiGraph, analysis: Analysis, review: Any, fold: bool) -> _Pla
     recommended: dict[str, list[Any]] = defaultdict(list)
     for r in getattr(review, "arrestors", None) or ():
         node = getattr(r, "node", None)
-        if node in tree:
+        if isinstance(node, str) and node in tree:
             recommended[node].append(r)
     level_of = assign_levels(tree)
     elevation: dict[int, float] = {}
@@ -468,8 +471,11 @@ def _plan(tree: nx.DiGraph, analysis: Analysis, review: Any, fold: bool) -> _Pla
     for n, p in node_peak.items():
         lv = level_of[n]
         peak_by_level[lv] = max(peak_by_level.get(lv, p), p)
-    folds = (find_folds(level_signatures(tree, level_of, recommended), peak_by_level)
-             if fold else [])
+    signatures = level_signatures(tree, level_of, recommended)
+    for root in _roots(tree):  # a supply's level is always drawn
+        lv = level_of[root]
+        signatures[lv] = (*signatures[lv], ("supply level", lv))
+    folds = find_folds(signatures, peak_by_level) if fold else []
     # Bands from the top of the page down: drawn levels and fold bands.
     fold_of = {lv: f for f in folds for lv in f.levels}
     band_specs: list[tuple[str, Any]] = []  # ("level", level) or ("fold", Fold)
@@ -589,8 +595,8 @@ def _draw(tree: nx.DiGraph, analysis: Analysis, plan: _Plan, roots: list[str],
             rc = row_of(c.node)
             if c.role == "vertical":
                 lo, hi = sorted((r0, rc))
-                for r in range(lo + 1, hi):
-                    cb.add(r, 0.0, 0.0)
+                for row in range(lo + 1, hi):
+                    cb.add(row, 0.0, 0.0)
                 lb = 0.0 if first_vertical else last + 1
                 first_vertical = False
             elif c.role == "drop":
@@ -599,10 +605,10 @@ def _draw(tree: nx.DiGraph, analysis: Analysis, plan: _Plan, roots: list[str],
                 lb = max(last + 1, 1.0, float(nfix))
             sep = 1.0 if (tree.out_degree(c.node) == 0 or c.role == "vertical") else 2.0
             d = lb
-            for r, (lo_c, _hi_c) in cb.contour.items():
-                a = blk.contour.get(r)
+            for row, (lo_c, _hi_c) in cb.contour.items():
+                a = blk.contour.get(row)
                 if a is not None:
-                    d = max(d, a[1] - lo_c + (sep if r != r0 else 1.0))
+                    d = max(d, a[1] - lo_c + (sep if row != r0 else 1.0))
             offset[c.node] = d
             if c.role != "run":
                 blk.add(r0, 0.0, d)
@@ -682,7 +688,7 @@ def _draw(tree: nx.DiGraph, analysis: Analysis, plan: _Plan, roots: list[str],
         for c in reversed(kids[n]):
             chain = c.chain
             surges = [pipe_surge[e] for e in chain if e in pipe_surge]
-            s = max(surges) if surges else None
+            surge = max(surges) if surges else None
             last_pipe = tree.edges[chain[-1]]["pipe"]
             x0, y0, x1, y1 = px(n), py(n), px(c.node), py(c.node)
             if x0 == x1 or y0 == y1:
@@ -691,8 +697,8 @@ def _draw(tree: nx.DiGraph, analysis: Analysis, plan: _Plan, roots: list[str],
                 pts = f"{x0:.1f},{y0:.1f} {x1:.1f},{y0:.1f} {x1:.1f},{y1:.1f}"
             if y0 != y1:
                 vsegs.append((x1, min(y0, y1), max(y0, y1)))
-            surge_text = "no closure event passes" if s is None else \
-                f"highest surge {fmt(s, 'pressure', u)}"
+            surge_text = "no closure event passes" if surge is None else \
+                f"highest surge {fmt(surge, 'pressure', u)}"
             folded = len(chain) > 1
             if folded:
                 title = (f"{len(chain)} pipes through folded levels, {chain[0][0]} to "
@@ -707,7 +713,7 @@ def _draw(tree: nx.DiGraph, analysis: Analysis, plan: _Plan, roots: list[str],
                 title = (f"pipe {last_pipe.id}: {last_pipe.nominal_size} {last_pipe.material}, "
                          f"{fmt(last_pipe.length_m, 'length', u)}; {surge_text}")
             pipes.append(PipeLine(
-                pts, shade_of(s, u), last_pipe.side == "hot",
+                pts, shade_of(surge, u), last_pipe.side == "hot",
                 round(1.0 + min(2.6, last_pipe.inside_diameter_m * 40.0), 2), title,
                 folded, x1, by,
             ))

@@ -1,9 +1,10 @@
 """The site schedule: one row per recommended arrestor, for the people who install them.
 
-:func:`schedule_rows` reads the review's schedule into plain rows (SI values); :func:`write_schedule_csv`
-writes them as CSV in the building's unit system, with the unit in each numeric column's name, and
-:func:`write_schedule_json` as JSON with SI units in the key names (like every JSON knockproof
-writes). Both write through :func:`knockproof.report.files.write_atomic`.
+:func:`schedule_rows` reads the review's schedule into plain rows (SI values);
+:func:`write_schedule_csv` writes them as CSV in the building's unit system, with the unit in
+each numeric column's name, and :func:`write_schedule_json` as JSON with SI units in the key
+names (like every JSON knockproof writes). Both write through
+:func:`knockproof.report.files.write_atomic`.
 
 CSV layout (docs/report.md): one header row; one row per arrestor; then one ``total`` row per size
 class and one for all classes (``count`` column); last, one ``caution`` row carrying the caution.

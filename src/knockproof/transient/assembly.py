@@ -68,6 +68,11 @@ class Layout:
     end_sign: np.ndarray
     end_r_scaled: np.ndarray
     end_inv_b: np.ndarray
+    end_in: np.ndarray
+    end_out: np.ndarray
+    end_sign_f: np.ndarray
+    state0: np.ndarray
+    block_pipe: np.ndarray
     # valves
     valve_ptr: np.ndarray
     valve_order: np.ndarray
@@ -167,6 +172,21 @@ def _union_find_groups(n_nodes: int, up: np.ndarray, down: np.ndarray, lumped: n
     roots = np.array([find(i) for i in range(n_nodes)], dtype=np.int64)
     _, group = np.unique(roots, return_inverse=True)
     return group.astype(np.int64), int(group.max()) + 1
+
+
+BLOCK_SECTIONS = 256
+"""The kernel's flat pass counts sections below their vapour head per block of about this many."""
+
+
+def _blocks(offset: np.ndarray, total: int) -> np.ndarray:
+    """First pipe of each block of consecutive pipes (about BLOCK_SECTIONS sections), then the
+    number of pipes."""
+    starts = [0]
+    for i in range(1, len(offset)):
+        if offset[i] - offset[starts[-1]] >= BLOCK_SECTIONS:
+            starts.append(i)
+    starts.append(len(offset))
+    return np.array(starts, dtype=np.int64)
 
 
 def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layout:
@@ -435,6 +455,13 @@ def build_layout(net: TransientNetwork, grid: Grid, *, cavitation: bool) -> Layo
         end_sign=end_sign,
         end_r_scaled=r_coef[end_pipe] / b_coef[end_pipe] ** 2,
         end_inv_b=end_inv_b,
+        end_in=end_neighbour + np.where(end_sign < 0, total, 0),
+        end_out=end_section + np.where(end_sign > 0, total, 0),
+        end_sign_f=end_sign.astype(float),
+        state0=np.concatenate(
+            [head + q - section_r * q * np.abs(q), head - q + section_r * q * np.abs(q)]
+        ),
+        block_pipe=_blocks(offset, total),
         valve_ptr=valve_ptr.astype(np.int64),
         valve_order=np.array(order, dtype=np.int64),
         valve_flow0=valve_flow,

@@ -297,8 +297,13 @@ def simulate_event(
     *,
     zone_travel_s: float | None = None,
     time_step_s: float | None = None,
+    record: bool = True,
 ) -> EventSimulation:
-    """Simulate one event (with gas-cushion arrestors at ``cushions``: (node, gas volume m^3))."""
+    """Simulate one event (with gas-cushion arrestors at ``cushions``: (node, gas volume m^3)).
+
+    ``record=False`` keeps no pressure history (``times_s`` and ``valve_pressure_pa`` empty): what
+    a whole-building run wants, thousands of events at a time.
+    """
     from knockproof.transient.solver import simulate
 
     net, index, duration = build_event_network(tree, analysis, event, cushions,
@@ -306,7 +311,7 @@ def simulate_event(
     valve = index[event.node]
     if time_step_s is None:
         time_step_s = event_time_step_s(event)
-    res = simulate(net, duration, record_nodes=[valve], time_step_s=time_step_s)
+    res = simulate(net, duration, record_nodes=[valve] if record else [], time_step_s=time_step_s)
     on_path = [index[p.node] for p in event.path if p.node in index]
     path_peaks = {p.node: float(res.node_max_pressure_pa[index[p.node]]) for p in event.path
                   if p.node in index}
@@ -320,6 +325,7 @@ def simulate_event(
         collapse_peak_pressure_pa=None if math.isnan(collapse) else collapse,
         min_pressure_pa=float(np.min(res.node_min_pressure_pa[on_path])),
         cavity=bool(np.any(res.node_cavity)), path_peak_pressure_pa=path_peaks,
-        times_s=np.asarray(res.times_s), valve_pressure_pa=np.asarray(res.traces_pressure_pa[valve]),
+        times_s=np.asarray(res.times_s) if record else np.zeros(0),
+        valve_pressure_pa=np.asarray(res.traces_pressure_pa[valve]) if record else np.zeros(0),
         arrestors=tuple(cushions),
     )

@@ -54,7 +54,7 @@ def _run(job: tuple[str, tuple[tuple[str, float], ...]]) -> EventSimulation:
     tree = _STATE["tree"]
     analysis = _STATE["analysis"]
     event = _STATE["events"][event_id]  # type: ignore[index]
-    return simulate_event(tree, analysis, event, cushions)  # type: ignore[arg-type]
+    return simulate_event(tree, analysis, event, cushions, record=False)  # type: ignore[arg-type]
 
 
 def _workers(requested: int | None) -> int:
@@ -191,3 +191,29 @@ def _bisect(tree, analysis, arrestor, event, start, limit_pa) -> ArrestorCheck:
             lo = mid
     return ArrestorCheck(arrestor.id, event.id, getattr(arrestor, "gas_volume_m3", None), hi, p_hi,
                          limit_pa)
+
+
+@dataclass(frozen=True)
+class Traces:
+    """Pressure at the valve against time, bare and with the scheduled arrestors (gauge [Pa])."""
+
+    times_s: object
+    valve_pressure_pa: object
+    valve_pressure_with_arrestors_pa: object | None
+
+
+def traces_for(tree: nx.DiGraph, analysis: Analysis, events: Sequence[EventResult],
+               arrestors: Sequence[object] = ()) -> dict[str, Traces]:
+    """Re-run a few events keeping their pressure histories (for plots)."""
+    import numpy as np
+
+    out = {}
+    for e in events:
+        bare = simulate_event(tree, analysis, e)
+        cushions = cushions_for(e, arrestors)
+        with_p = None
+        if cushions:
+            prot = simulate_event(tree, analysis, e, cushions)
+            with_p = np.interp(bare.times_s, prot.times_s, prot.valve_pressure_pa)
+        out[e.id] = Traces(bare.times_s, bare.valve_pressure_pa, with_p)
+    return out

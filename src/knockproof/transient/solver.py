@@ -243,15 +243,16 @@ def simulate(
     setup_seconds = time.perf_counter() - started
 
     started = time.perf_counter()
-    final_head, _, gas_final, cavity_left = kernel.run(
+    final_head, gas_final, cavity_left = kernel.run(
         steps, dt, CAVITY_WEIGHT, cavitation,
-        lay.head, lay.scaled_flow,
+        lay.state0,
         lay.offset, lay.reaches, lay.b_coef, lay.r_coef / lay.b_coef**2,
         lay.vapour_head_start, lay.vapour_head_step, lay.section_r_scaled, lay.section_threshold,
+        lay.block_pipe,
         lay.plain_count, lay.class_start, lay.class_degree,
         lay.group_kind, lay.group_fixed_head, lay.group_vapour_head, lay.group_bs, lay.group_head,
-        lay.end_ptr, lay.end_section, lay.end_neighbour, lay.end_sign, lay.end_r_scaled,
-        lay.end_inv_b,
+        lay.end_ptr, lay.end_in, lay.end_out, lay.end_sign_f, lay.end_r_scaled,
+        lay.end_inv_b, lay.end_section,
         lay.valve_ptr, lay.valve_flow0, lay.valve_drop0, lay.valve_elevation,
         lay.valve_family, lay.valve_exponent, lay.valve_closure, lay.valve_start,
         lay.group_arrestor, lay.arrestor_c0, lay.arrestor_n, lay.arrestor_k,
