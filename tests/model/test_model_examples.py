@@ -106,7 +106,7 @@ def test_tower_geometry(tower) -> None:  # noqa: ANN001
     assert tree.nodes["24J-h-tub"]["side"] == "hot"
     assert tree.nodes["24J-c-wc"]["side"] == "cold"
     pipes = {p.id: p for p in building.pipes}
-    assert pipes["R2"].nominal_size == "2-1/2" and pipes["R13"].nominal_size == "2"
+    assert pipes["R2"].nominal_size == "4" and pipes["R13"].nominal_size == "3"
     assert pipes["R2"].material == "copper-L"
     assert pipes["7C-c-kit"].material == "pex-sdr9"
     assert pipes["U7F-c"].length_m == pytest.approx(42 * FT)  # west corridor run
