@@ -223,11 +223,15 @@ def test_corpus_in_child_matches_in_process():
 
 @pytest.mark.xfail(
     reason="closure events take time quadratic in the branches at one junction (and cubic along "
-    "a chain): 5,000 basins on one header (10,000 items, 5% of the item limit) take minutes",
+    "a chain): the closed-form screen of 5,000 basins on one header (10,000 items, 5% of the item "
+    "limit) takes about a minute",
     strict=True,
 )
 def test_wide_header_within_limits_is_screened_in_bounded_time(tmp_path: Path):
-    """A valid file far inside the 200,000-item limit must not take minutes (docs/limits.md)."""
+    """A valid file far inside the 200,000-item limit must not take minutes (docs/limits.md).
+
+    Only the closed-form screen (``analyze``) runs here, in a child so that it can be stopped.
+    """
     star = _replace('size = "1"', 'size = "4"') + (
         '\n[[template]]\nname = "basin"\n\n[[template.pipe]]\nid = "B{k}"\nfrom = "main"\n'
         'to = "b{k}"\nlength = 4\nsize = "1/2"\n\n[[template.fixture]]\nid = "L{k}"\n'
@@ -236,8 +240,9 @@ def test_wide_header_within_limits_is_screened_in_bounded_time(tmp_path: Path):
     )
     path = tmp_path / "wide-header.toml"
     path.write_text(star, encoding="utf-8")
+    code = "import sys; from knockproof.analysis.run import analyze; analyze(sys.argv[1])"
     try:
-        run = run_child(path, timeout=15)
+        subprocess.run([sys.executable, "-c", code, str(path)], check=True, timeout=10,
+                       capture_output=True, preexec_fn=_limit_memory)
     except subprocess.TimeoutExpired:
-        pytest.fail("not finished in 15 s")
-    assert run.status in (0, 1), run.stderr[:2000]
+        pytest.fail("the closed-form screen did not finish in 10 s")

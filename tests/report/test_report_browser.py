@@ -10,7 +10,7 @@ import subprocess
 from pathlib import Path
 
 import pytest
-from conftest import build
+from report_support import build
 
 from knockproof.report.html import render_html
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 import csv
 import shutil
 
-from conftest import FIXTURES, HOSTILE_BUILDING, run_report
+from report_support import FIXTURES, HOSTILE_BUILDING, run_report
 
 PASSING = """
 [building]

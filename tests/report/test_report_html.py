@@ -7,7 +7,7 @@ from html.parser import HTMLParser
 from pathlib import Path
 from types import SimpleNamespace
 
-from conftest import build
+from report_support import build
 
 from knockproof.report.cautions import CAUTION
 from knockproof.report.html import render_html, summarize_places

@@ -122,7 +122,7 @@ def test_pipes_on_an_event_path_are_shaded(clinic):
 
 def test_alike_levels_that_hold_a_supply_are_all_drawn(tmp_path):
     """Four identical floors, each fed by its own supply: nothing may fold a supply away."""
-    from conftest import build
+    from report_support import build
 
     parts = ['[building]\nname = "Stacked"\nunits = "si"\n[defaults]\nmaterial = "copper-L"\n']
     for k in range(4):
