@@ -51,14 +51,25 @@ class Problem:
         return ": ".join(parts) + f": {self.message}"
 
 
+#: Most problems listed in one message; the rest are counted in a last line.
+MAX_PROBLEMS_SHOWN = 50
+
+
 class InputError(KnockproofError):
-    """One or more problems in an input file, all found in one pass."""
+    """One or more problems in an input file, all found in one pass.
+
+    ``problems`` keeps every problem; the message lists at most ``MAX_PROBLEMS_SHOWN``.
+    """
 
     def __init__(self, problems: list[Problem]):
         if not problems:
             raise ValueError("InputError needs at least one problem")
         self.problems = list(problems)
-        super().__init__("\n".join(str(p) for p in self.problems))
+        lines = [str(p) for p in self.problems[:MAX_PROBLEMS_SHOWN]]
+        if len(self.problems) > MAX_PROBLEMS_SHOWN:
+            lines.append(f"{self.problems[0].file}: ... and "
+                         f"{len(self.problems) - MAX_PROBLEMS_SHOWN:,} more problems not listed")
+        super().__init__("\n".join(lines))
 
     @classmethod
     def single(

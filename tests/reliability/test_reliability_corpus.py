@@ -148,12 +148,10 @@ GENERATED: dict[str, tuple[bytes | None, list[str], str]] = {
         [r"\[building\]", "field 'name'", "200"], ""),
     "length-4-mb-string.toml": (
         _replace("length = 18", 'length = "' + "x" * 4_000_000 + '"').encode(),
-        ['pipe "C2"', "field 'length'"],
-        "a quantity's 'found' value is echoed in full: a 4 MB length string gives 4 MB on stderr"),
+        ['pipe "C2"', "field 'length'"], ""),
     "id-4-mb.toml": (
         _replace('id = "C2"', 'id = "' + "C" * 4_000_000 + '"').encode(),
-        ["field 'id'", "200"],
-        "the item name echoes the raw id in full: a 4 MB id gives 4 MB on stderr"),
+        ["field 'id'", "200"], ""),
     "a-directory.toml": (None, ["is a directory"], ""),
     "no-such-file.toml": (None, ["no such file"], ""),
 }
@@ -201,11 +199,6 @@ def test_real_command_in_child(name: str, spec: dict, child_runs: dict[str, Futu
     check_run(child_runs[name].result(), name, spec)
 
 
-@pytest.mark.xfail(
-    reason="reading /dev/zero (a device: st_size 0, no end) is not bounded by the 5 MiB limit; "
-    "the command reads until memory runs out (MemoryError under a 2 GiB limit); a FIFO blocks",
-    strict=True,
-)
 def test_endless_device_is_refused():
     if not Path("/dev/zero").exists():
         pytest.skip("no /dev/zero here")
@@ -221,12 +214,6 @@ def test_corpus_in_child_matches_in_process():
     assert " ".join(a.stderr.split()) == " ".join(b.stderr.split())
 
 
-@pytest.mark.xfail(
-    reason="closure events take time quadratic in the branches at one junction (and cubic along "
-    "a chain): the closed-form screen of 5,000 basins on one header (10,000 items, 5% of the item "
-    "limit) takes about a minute",
-    strict=True,
-)
 def test_wide_header_within_limits_is_screened_in_bounded_time(tmp_path: Path):
     """A valid file far inside the 200,000-item limit must not take minutes (docs/limits.md).
 

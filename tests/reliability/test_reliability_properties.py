@@ -246,12 +246,6 @@ def test_results_do_not_depend_on_the_order_of_items(doc, data, folder):
     assert not differences, differences[:10]
 
 
-@pytest.mark.xfail(
-    reason="a node takes the label of the first pipe in the file that names it as 'to', even a "
-    "pipe written against the flow (loader.py node_labels.setdefault(p.downstream, ...)), so node "
-    "labels depend on the order of [[pipe]] entries",
-    strict=True,
-)
 def test_node_label_comes_from_its_feeding_pipe_in_any_order(folder):
     """Found by the order property (with labels on): pipe C4 is written from c4 to c3, against the
     flow; node c3 is fed by C3 and must show C3's label whichever pipe comes first."""

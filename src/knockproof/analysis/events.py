@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
 
 import networkx as nx
 
@@ -41,6 +42,28 @@ def _admittance(r: PipeResult) -> float:
     return sg.admittance(_area(r.inside_diameter_m), r.wave_speed_m_per_s)
 
 
+@dataclass
+class _TreeIndex:
+    """Lookups built once per screen: parent pipe of each node and the admittance sums at each
+    junction, so that each event costs time in proportion to its path, not to the tree."""
+
+    parent: dict[str, tuple[str, str]]  # node -> (upstream node, pipe id)
+    pipe_y: dict[str, float]  # pipe id -> admittance A/a
+    children_y: dict[str, float]  # node -> sum of admittances of the pipes leaving it
+
+
+def _index(tree: nx.DiGraph, by_pipe: dict[str, PipeResult]) -> _TreeIndex:
+    parent: dict[str, tuple[str, str]] = {}
+    pipe_y: dict[str, float] = {}
+    children_y: dict[str, float] = {}
+    for u, v, pid in tree.edges(data="id"):
+        parent[v] = (u, pid)
+        y = _admittance(by_pipe[pid])
+        pipe_y[pid] = y
+        children_y[u] = children_y.get(u, 0.0) + y
+    return _TreeIndex(parent, pipe_y, children_y)
+
+
 def closure_events(
     tree: nx.DiGraph,
     pipes: Sequence[PipeResult],
@@ -52,6 +75,7 @@ def closure_events(
     building: Building = tree.graph["building"]
     by_pipe = {p.id: p for p in pipes}
     by_node = {n.id: n for n in nodes}
+    index = _index(tree, by_pipe)
     events: list[EventResult] = []
     valves: list[tuple[Fixture, str, str]] = []
     for f in building.fixtures:
@@ -63,7 +87,7 @@ def closure_events(
             valves.append((f, side, node))
     singles = []
     for f, side, node in valves:
-        ev = _event(tree, by_pipe, by_node, densities[side], [(f, node)], side, False)
+        ev = _event(index, by_pipe, by_node, densities[side], [(f, node)], side, False)
         singles.append(ev)
         events.append(ev)
     if simultaneous:
@@ -72,22 +96,22 @@ def closure_events(
             groups.setdefault((side, f.kind, ev.reflection_node), []).append((f, node))
         for (side, _kind, _refl), members in groups.items():
             if len(members) > 1:
-                events.append(_event(tree, by_pipe, by_node, densities[side], members, side, True))
+                events.append(_event(index, by_pipe, by_node, densities[side], members, side, True))
     return tuple(events)
 
 
-def _path_edges(tree: nx.DiGraph, node: str) -> list[tuple[str, str]]:
+def _path_edges(index: _TreeIndex, node: str) -> list[tuple[str, str, str]]:
+    """(upstream, downstream, pipe id) from ``node`` back to its supply."""
     out = []
-    while True:
-        preds = list(tree.predecessors(node))
-        if not preds:
-            return out
-        out.append((preds[0], node))
-        node = preds[0]
+    while node in index.parent:
+        u, pid = index.parent[node]
+        out.append((u, node, pid))
+        node = u
+    return out
 
 
 def _event(
-    tree: nx.DiGraph,
+    index: _TreeIndex,
     by_pipe: dict[str, PipeResult],
     by_node: dict[str, NodeResult],
     density: float,
@@ -96,19 +120,19 @@ def _event(
     simultaneous: bool,
 ) -> EventResult:
     members = list(members)
+    paths = {node: _path_edges(index, node) for _, node in members}
     # Flow stopped in each pipe: the sum of the closing valves' flows downstream of it.
-    stopped: dict[tuple[str, str], float] = {}
+    stopped: dict[str, float] = {}
     for f, node in members:
-        for e in _path_edges(tree, node):
-            stopped[e] = stopped.get(e, 0.0) + f.flow_m3_per_s
-    # The event's own path starts at the closing valve furthest from the supply's side of the group:
-    # for a single valve its node; for a group, the member with the longest path.
-    lead_f, lead_node = max(members, key=lambda m: len(_path_edges(tree, m[1])))
-    path = _path_edges(tree, lead_node)
+        for _, _, pid in paths[node]:
+            stopped[pid] = stopped.get(pid, 0.0) + f.flow_m3_per_s
+    # The event's own path starts at the closing valve furthest from the supply.
+    lead_f, lead_node = max(members, key=lambda m: len(paths[m[1]]))
+    path = paths[lead_node]
     if not path:
         raise ValueError(f"fixture {lead_f.id} sits on a supply node; it has no pipe")
-    first = by_pipe[tree.edges[path[0]]["id"]]
-    v1 = stopped[path[0]] / _area(first.inside_diameter_m)
+    first = by_pipe[path[0][2]]
+    v1 = stopped[path[0][2]] / _area(first.inside_diameter_m)
     a1 = first.wave_speed_m_per_s
     closure_time = min(f.closure_time_s for f, _ in members)
 
@@ -118,36 +142,35 @@ def _event(
     length = 0.0
     reflection_node = path[-1][0]
     transmission_to: dict[str, float] = {lead_node: 1.0}
+    velocity_in: dict[str, float] = {lead_node: v1}
     t_cum = 1.0
     reached = False
     distance = {lead_node: 0.0}
-    for i, (u, v) in enumerate(path):
-        r = by_pipe[tree.edges[u, v]["id"]]
-        vel = stopped[(u, v)] / _area(r.inside_diameter_m)
+    for u, v, pid in path:
+        r = by_pipe[pid]
+        vel = stopped[pid] / _area(r.inside_diameter_m)
         distance[u] = distance[v] + r.length_m
         sum_lv += r.length_m * vel
         if not reached:
             travel += r.length_m / r.wave_speed_m_per_s
             length += r.length_m
-        # Junction at u: the wave arrives along (u, v).
-        y_in = _admittance(r)
-        ys = [y_in]
-        for w in tree.successors(u):
-            if w != v:
-                ys.append(_admittance(by_pipe[tree.edges[u, w]["id"]]))
-        preds = list(tree.predecessors(u))
-        if preds:
-            ys.append(_admittance(by_pipe[tree.edges[preds[0], u]["id"]]))
-            t = sg.junction_transmission(ys, 0)
+        # Junction at u: the wave arrives along (u, v); T = 2 Y_in / sum Y (Wylie & Streeter).
+        y_in = index.pipe_y[pid]
+        if u in index.parent:
+            total = index.children_y[u] + index.pipe_y[index.parent[u][1]]
+            t = 2.0 * y_in / total
         else:
             t = 0.0  # the supply holds its pressure: full negative reflection
-        if not reached and (1.0 - t >= STRONG_REFLECTION or not preds):
+        if not reached and (1.0 - t >= STRONG_REFLECTION or u not in index.parent):
             reached = True
             reflection_node = u
-        t_cum *= t if preds else 1.0
+        t_cum *= t if u in index.parent else 1.0
         transmission_to[u] = t_cum
-        if i == len(path) - 1:
-            break
+        if u in index.parent:
+            up = by_pipe[index.parent[u][1]]
+            velocity_in[u] = stopped.get(up.id, 0.0) / _area(up.inside_diameter_m)
+        else:
+            velocity_in[u] = 0.0
     critical = 2.0 * travel
     jouk = sg.joukowsky_surge_pa(density, a1, v1)
     rapid = closure_time <= critical
@@ -156,17 +179,10 @@ def _event(
     else:
         surge_valve = min(jouk, 2.0 * density * sum_lv / closure_time)
     points = []
-    for node in [lead_node] + [u for u, _ in path]:
+    for node in [lead_node] + [u for u, _, _ in path]:
         st = by_node[node].static_pressure_pa
         s = surge_valve * transmission_to[node]
-        if node == lead_node:
-            dv = v1
-        else:
-            e = next(e for e in path if e[1] == node) if node != path[-1][0] else None
-            dv = 0.0
-            if e is not None:
-                dv = stopped[e] / _area(by_pipe[tree.edges[e]["id"]].inside_diameter_m)
-        points.append(PathPoint(node, distance[node], dv, s, st, st + s))
+        points.append(PathPoint(node, distance[node], velocity_in[node], s, st, st + s))
     nres = by_node[lead_node]
     fixtures = tuple(f.id for f, _ in members)
     kind = lead_f.kind

@@ -36,6 +36,7 @@ from knockproof.model.schema import (
 )
 from knockproof.model.templates import Expanded, TemplateProblem, expand
 from knockproof.model.units import QuantityError, parse_quantity
+from knockproof.model.units import shown as _shown
 
 #: Largest building file read, in bytes. See docs/limits.md.
 MAX_FILE_BYTES = 5 * 1024 * 1024
@@ -62,14 +63,18 @@ def read_document(path: str | Path) -> tuple[BuildingFile, LineIndex]:
         raise InputError.single(file, "file", "", "no such file")
     if p.is_dir():
         raise InputError.single(file, "file", "", "is a directory, not a building file")
+    if not p.is_file():
+        raise InputError.single(file, "file", "", "is not a regular file (a device, pipe or "
+                                "socket); give a building file")
+    too_big = (f"is larger than {MAX_FILE_BYTES:,} bytes, the limit for building files (use "
+               "templates for repeated floors)")
     try:
-        size = p.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise InputError.single(
-                file, "file", "", f"is {size:,} bytes; building files are limited to "
-                f"{MAX_FILE_BYTES:,} bytes (use templates for repeated floors)"
-            )
-        raw = p.read_bytes()
+        if p.stat().st_size > MAX_FILE_BYTES:
+            raise InputError.single(file, "file", "", too_big)
+        with p.open("rb") as fh:
+            raw = fh.read(MAX_FILE_BYTES + 1)
+        if len(raw) > MAX_FILE_BYTES:
+            raise InputError.single(file, "file", "", too_big)
     except OSError as e:
         raise InputError.single(file, "file", "", f"cannot be read: {e.strerror or e}") from None
     if not raw.strip():
@@ -92,6 +97,9 @@ def read_document(path: str | Path) -> tuple[BuildingFile, LineIndex]:
         raise InputError.single(file, "file", "", f"is not valid TOML: {msg}", line) from None
     except RecursionError:
         raise InputError.single(file, "file", "", "nests tables or arrays too deeply") from None
+    except ValueError as e:  # e.g. an integer of more digits than Python converts
+        raise InputError.single(file, "file", "", "is not valid TOML: a value cannot be read "
+                                f"({str(e)[:80]})") from None
     lines = LineIndex(text)
     try:
         doc = BuildingFile.model_validate(data)
@@ -147,17 +155,18 @@ def _item_name(data: dict[str, Any], key: tuple[Any, ...] | None) -> str:
     try:
         if key[0] == "template":
             t = data["template"][key[1]]
-            tname = t.get("name", f"#{key[1] + 1}") if isinstance(t, dict) else f"#{key[1] + 1}"
+            tname = _short(t.get("name", f"#{key[1] + 1}")) if isinstance(t, dict) else \
+                f"#{key[1] + 1}"
             if len(key) == 2:
                 return f'template "{tname}"'
             entry = t[key[2]][key[3]]
-            ident = entry.get("id") if isinstance(entry, dict) else None
+            ident = _short(entry.get("id")) if isinstance(entry, dict) else None
             what = f'{key[2]} "{ident}"' if isinstance(ident, str) else f"{key[2]} #{key[3] + 1}"
             return f'{what} of template "{tname}"'
         entry = data[key[0]][key[1]]
-        ident = entry.get("id") if isinstance(entry, dict) else None
+        ident = _short(entry.get("id")) if isinstance(entry, dict) else None
         if key[0] == "supply" and isinstance(entry, dict):
-            ident = entry.get("node")
+            ident = _short(entry.get("node"))
         if isinstance(ident, str):
             return f'{key[0]} "{ident}"'
     except (KeyError, IndexError, TypeError, AttributeError):
@@ -165,18 +174,24 @@ def _item_name(data: dict[str, Any], key: tuple[Any, ...] | None) -> str:
     return f"{key[0]} #{key[1] + 1}"
 
 
+def _short(ident: Any) -> Any:
+    """An id as shown in a message: cut when absurdly long (inputs may be hostile)."""
+    if isinstance(ident, str) and len(ident) > 60:
+        return ident[:50] + f"... ({len(ident):,} chars)"
+    return ident
+
+
 def _pydantic_message(e: Any) -> str:
     kind = e.get("type", "")
     found = e.get("input")
-    shown = repr(found) if not isinstance(found, dict) else "a table"
-    if len(shown) > 60:
-        shown = shown[:57] + "..."
+    shown = _shown(found) if not isinstance(found, dict) else "a table"
     if kind == "missing":
         return "is required but missing"
     if kind == "extra_forbidden":
         return f"is not a known key (found {shown}); see docs/input-format.md"
     if kind == "literal_error":
-        return f"{e['msg'].lower()}, found {shown}"
+        msg = str(e["msg"])
+        return f"{msg[:1].lower()}{msg[1:]}, found {shown}"
     return f"{e['msg']}; found {shown}"
 
 
@@ -205,7 +220,7 @@ class _Collector:
             return None
         if positive and (v < 0 or (v == 0 and not allow_zero)):
             self.add(item, field, f"must be {'zero or more' if allow_zero else 'more than zero'}, "
-                     f"found {value!r}", key)
+                     f"found {_shown(value)}", key)
             return None
         if limit is not None:
             lo, hi = LIMITS[limit]
@@ -229,6 +244,8 @@ def _show_range(limit: str, units: str) -> str:
 
 def _name(kind: str, model: BaseModel, origin: str, index: int) -> str:
     ident = getattr(model, "id", None)
+    if isinstance(ident, str) and len(ident) > 60:
+        ident = ident[:50] + f"... ({len(ident):,} chars)"
     base = f'{kind} "{ident}"' if ident else f"{kind} #{index + 1}"
     if kind == "arrestor" and not ident:
         base = f'arrestor at "{getattr(model, "node", "?")}"'
@@ -266,7 +283,7 @@ def load_building(path: str | Path) -> Building:
         item = f'supply "{s.node}"'
         sp = c.q(s.static_pressure, "pressure", item, "static_pressure", key, "static_pressure")
         if s.static_pressure is not None and sp is not None and sp <= 0:
-            c.add(item, "static_pressure", f"must be more than zero, found {s.static_pressure!r}",
+            c.add(item, "static_pressure", f"must be more than zero, found {_shown(s.static_pressure)}",
                   key)
         if s.static_pressure is None and not (s.kind == "heater-outlet" and s.fed_from):
             c.add(item, "static_pressure", "is required (only a heater outlet with 'fed_from' "
@@ -335,10 +352,7 @@ def load_building(path: str | Path) -> Building:
 
     if c.problems:
         raise InputError(_fold_repeats(c.problems))
-    node_labels: dict[str, str] = {}
-    for p in pipes:
-        if p.label:
-            node_labels.setdefault(p.downstream, p.label)
+    node_labels: dict[str, str] = {}  # labels follow the oriented tree (network/build.py)
     profile = b.profile or ("si-default" if units == "si" else "us-default")
     return Building(
         name=b.name, source=file, unit_system=units, cold_temperature_c=cold_t,
@@ -368,6 +382,10 @@ def _pipe(c: _Collector, it: Expanded, n: int, d: Any, default_fittings: Any) ->
         catalog.get_material(material)
     except KeyError as e:
         c.add(item, "material", _key_message(e), key)
+        return None
+    if len(str(p.size)) > 20:
+        c.add(item, "size", f"expected a nominal size such as '3/4' or 'DN20', found "
+              f"{_shown(p.size)}", key)
         return None
     try:
         size = catalog.get_size(material, catalog.normalize_nominal(p.size))
@@ -400,10 +418,10 @@ def _fittings(c: _Collector, raw: Any, length: float | None, item: str,
         try:
             pct = float(raw.strip()[:-1])
         except ValueError:
-            c.add(item, "fittings", f"expected a percentage like '25%', found {raw!r}", key)
+            c.add(item, "fittings", f"expected a percentage like '25%', found {_shown(raw)}", key)
             return None
         if not math.isfinite(pct) or pct < 0 or pct > 1000:
-            c.add(item, "fittings", f"expected a percentage from 0% to 1000%, found {raw!r}", key)
+            c.add(item, "fittings", f"expected a percentage from 0% to 1000%, found {_shown(raw)}", key)
             return None
         return (length or 0.0) * pct / 100.0
     return c.q(raw, "length", item, "fittings", key, "length", positive=True, allow_zero=True)

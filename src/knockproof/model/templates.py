@@ -27,6 +27,8 @@ MAX_EXPANDED_ITEMS = 200_000
 MAX_RANGE_VALUES = 10_000
 #: Deepest nesting of placements.
 MAX_DEPTH = 16
+#: Longest text (an id, a node name, a label, a variable) once variables are filled in.
+MAX_FILLED_CHARS = 200
 
 _FIELD = re.compile(r"\{([A-Za-z_][A-Za-z0-9_]*)\s*(?:([+-])\s*(\d+))?\}")
 
@@ -58,7 +60,7 @@ def parse_range(spec: str | list[str | int], where: str) -> list[str | int]:
     if isinstance(spec, list):
         values: list[str | int] = list(spec)
     else:
-        m = re.fullmatch(r"\s*(-?\d+)\s*\.\.\s*(-?\d+)\s*", spec)
+        m = re.fullmatch(r"\s*(-?\d{1,9})\s*\.\.\s*(-?\d{1,9})\s*", spec)
         if m:
             lo, hi = int(m.group(1)), int(m.group(2))
             if hi < lo:
@@ -72,8 +74,10 @@ def parse_range(spec: str | list[str | int], where: str) -> list[str | int]:
         else:
             m = re.fullmatch(r"\s*([A-Za-z])\s*\.\.\s*([A-Za-z])\s*", spec)
             if not m:
+                text = spec if len(spec) <= 40 else spec[:35] + "..."
                 raise TemplateProblem(
-                    where, "for", f"expected a range like '2..24' or 'A..J' or a list, found '{spec}'"
+                    where, "for", f"expected a range like '2..24' or 'A..J' or a list (whole "
+                    f"numbers of up to 9 digits), found '{text}'"
                 )
             a, b = m.group(1), m.group(2)
             letters = string.ascii_uppercase if a.isupper() else string.ascii_lowercase
@@ -109,7 +113,10 @@ def fill(text: str, variables: dict[str, str | int], where: str, field: str) -> 
 
     out = _FIELD.sub(sub, text)
     if "{" in out or "}" in out:
-        raise TemplateProblem(where, field, f"unbalanced or malformed braces in '{text}'")
+        raise TemplateProblem(where, field, f"unbalanced or malformed braces in '{text[:60]}'")
+    if len(out) > MAX_FILLED_CHARS:
+        raise TemplateProblem(where, field, f"the text grows to {len(out):,} characters once its "
+                              f"variables are filled in; at most {MAX_FILLED_CHARS} are allowed")
     return out
 
 

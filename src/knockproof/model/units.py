@@ -66,6 +66,16 @@ class QuantityError(ValueError):
     """A quantity could not be read; the message says what was expected and what was found."""
 
 
+#: Longest unit text read (longer ones are refused before pint sees them).
+MAX_UNIT_CHARS = 40
+
+
+def shown(value: object, most: int = 60) -> str:
+    """``repr`` of a value for a message, cut to ``most`` characters (inputs may be huge)."""
+    text = repr(value)
+    return text if len(text) <= most else text[: most - 5] + "...'" + f" ({len(text):,} chars)"
+
+
 @cache
 def registry() -> pint.UnitRegistry:
     """The one pint registry, with the trade's shorthands defined."""
@@ -103,35 +113,45 @@ def parse_quantity(value: object, kind: Kind, unit_system: str = "us") -> float:
     Pressures are gauge. Raises :class:`QuantityError` with a message naming what was expected.
     """
     if isinstance(value, bool) or not isinstance(value, (int, float, str)):
-        raise QuantityError(f"expected a {kind} such as {_EXAMPLES[kind]}, found {value!r}")
-    if isinstance(value, (int, float)):
-        number, unit = float(value), BARE_UNITS[unit_system][kind]
-    else:
-        m = _NUMBER.match(value)
-        if not m:
-            raise QuantityError(
-                f"expected a {kind} such as {_EXAMPLES[kind]}, found '{value}'"
-            )
-        number = _number(m.group("num"))
-        unit = m.group("unit") or BARE_UNITS[unit_system][kind]
+        raise QuantityError(f"expected a {kind} such as {_EXAMPLES[kind]}, found {shown(value)}")
+    try:
+        if isinstance(value, (int, float)):
+            number, unit = float(value), BARE_UNITS[unit_system][kind]
+        else:
+            m = _NUMBER.match(value) if len(value) <= 200 else None
+            if not m:
+                raise QuantityError(
+                    f"expected a {kind} such as {_EXAMPLES[kind]}, found {shown(value)}"
+                )
+            number = _number(m.group("num"))
+            unit = m.group("unit") or BARE_UNITS[unit_system][kind]
+    except (OverflowError, ValueError) as e:
+        if isinstance(e, QuantityError):
+            raise
+        raise QuantityError(f"expected a {kind} of sensible size, found {shown(value)}") from None
     if not math.isfinite(number):
-        raise QuantityError(f"expected a finite {kind}, found {value!r}")
+        raise QuantityError(f"expected a finite {kind}, found {shown(value)}")
+    if len(unit) > MAX_UNIT_CHARS:
+        raise QuantityError(f"expected a {kind} such as {_EXAMPLES[kind]}, found {shown(value)} "
+                            "(the unit is too long to be one)")
     ureg = registry()
     try:
         q = ureg.Quantity(number, unit)
         si = q.to(_SI_UNITS[kind])
     except pint.errors.DimensionalityError:
         raise QuantityError(
-            f"expected a {kind} such as {_EXAMPLES[kind]}, found '{value}' ({_describe(unit)})"
+            f"expected a {kind} such as {_EXAMPLES[kind]}, found {shown(value)} ({_describe(unit)})"
         ) from None
     except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            ValueError, TypeError, SyntaxError, AssertionError):
+            ValueError, TypeError, SyntaxError, AssertionError, RecursionError, OverflowError,
+            ZeroDivisionError, KeyError):
         raise QuantityError(
-            f"expected a {kind} such as {_EXAMPLES[kind]}, found '{value}' (unknown unit '{unit}')"
+            f"expected a {kind} such as {_EXAMPLES[kind]}, found {shown(value)} (unknown unit "
+            f"{shown(unit, 30)})"
         ) from None
     result = float(si.magnitude)
     if not math.isfinite(result):
-        raise QuantityError(f"expected a finite {kind}, found {value!r}")
+        raise QuantityError(f"expected a finite {kind}, found {shown(value)}")
     return result
 
 
@@ -139,7 +159,7 @@ def _describe(unit: str) -> str:
     ureg = registry()
     try:
         dim = ureg.Quantity(1.0, unit).dimensionality
-    except Exception:  # noqa: BLE001 - only used to word a message
+    except Exception:  # noqa: BLE001 - only used to word a message (unit already parsed once)
         return "an unknown unit"
     for kind, si in _SI_UNITS.items():
         if ureg.Quantity(1.0, si).dimensionality == dim:

@@ -100,6 +100,10 @@ def build_tree(building: Building) -> nx.DiGraph:
             if node not in tree:
                 problems.append(Problem(file, f'fixture "{f.id}"', side,
                                         f"unknown node '{node}'", f.line))
+            elif node in supplies:
+                problems.append(Problem(file, f'fixture "{f.id}"', side,
+                                        f"node '{node}' is a supply point; a fixture draws through "
+                                        "at least one pipe from it", f.line))
             else:
                 tree.nodes[node]["fixtures"].append((f, side))
     for a in building.arrestors:
