@@ -20,8 +20,9 @@ ROOT = Path(__file__).resolve().parents[1]
 
 def run(args: list[str]) -> tuple[float, int, str]:
     t0 = time.perf_counter()
-    r = subprocess.run([sys.executable, "-m", "knockproof", *args], capture_output=True, text=True,
-                       cwd=ROOT)
+    r = subprocess.run(
+        [sys.executable, "-m", "knockproof", *args], capture_output=True, text=True, cwd=ROOT
+    )
     return time.perf_counter() - t0, r.returncode, r.stdout
 
 
@@ -35,8 +36,10 @@ def main() -> None:
     n = len(data["events"])
     with_arr = sum(1 for e in data["events"] if e["simulated_peak_with_arrestors_pa"] is not None)
     peak_mib = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024
-    print(f"check {path} (every event simulated): {t_sim:6.1f} s (exit {rc}); {n} events, "
-          f"{with_arr} also with arrestors, {n + with_arr} simulations")
+    print(
+        f"check {path} (every event simulated): {t_sim:6.1f} s (exit {rc}); {n} events, "
+        f"{with_arr} also with arrestors, {n + with_arr} simulations"
+    )
     print(f"  {1000 * t_sim / max(1, n + with_arr):.1f} ms a simulation, wall, both cores")
     print(f"peak memory of any one process: {peak_mib:,.0f} MiB")
 

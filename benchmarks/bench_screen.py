@@ -34,14 +34,18 @@ def main() -> None:
     t_build, tree = best_of(5, lambda: build_tree(building))
     t_screen, analysis = best_of(5, lambda: analyze_tree(tree))
     print(f"building: {building.name} ({path.name})")
-    print(f"pipes: {len(building.pipes)}  fixtures: {len(building.fixtures)}  "
-          f"closure events: {len(analysis.events)}")
+    print(
+        f"pipes: {len(building.pipes)}  fixtures: {len(building.fixtures)}  "
+        f"closure events: {len(analysis.events)}"
+    )
     print(f"load (parse, validate, expand templates, SI): {t_load * 1000:8.1f} ms")
     print(f"build tree (networkx, checks):                {t_build * 1000:8.1f} ms")
     print(f"load and build:                               {(t_load + t_build) * 1000:8.1f} ms")
     print(f"screen (steady flow, wave speeds, events):    {t_screen * 1000:8.1f} ms")
-    print(f"  of which steady flow {analysis.timings_s['steady_flow'] * 1000:.1f} ms, events "
-          f"{analysis.timings_s['events'] * 1000:.1f} ms")
+    print(
+        f"  of which steady flow {analysis.timings_s['steady_flow'] * 1000:.1f} ms, events "
+        f"{analysis.timings_s['events'] * 1000:.1f} ms"
+    )
 
 
 if __name__ == "__main__":

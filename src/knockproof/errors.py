@@ -67,8 +67,10 @@ class InputError(KnockproofError):
         self.problems = list(problems)
         lines = [str(p) for p in self.problems[:MAX_PROBLEMS_SHOWN]]
         if len(self.problems) > MAX_PROBLEMS_SHOWN:
-            lines.append(f"{self.problems[0].file}: ... and "
-                         f"{len(self.problems) - MAX_PROBLEMS_SHOWN:,} more problems not listed")
+            lines.append(
+                f"{self.problems[0].file}: ... and "
+                f"{len(self.problems) - MAX_PROBLEMS_SHOWN:,} more problems not listed"
+            )
         super().__init__("\n".join(lines))
 
     @classmethod

@@ -22,8 +22,9 @@ run = dict(
 
 @settings(max_examples=150, deadline=None)
 @given(**run, t1=st.floats(0.001, 5.0), t2=st.floats(0.001, 5.0))
-def test_slower_closure_never_raises_surge(material, length, flow, static, temperature, restraint,
-                                           t1, t2):
+def test_slower_closure_never_raises_surge(
+    material, length, flow, static, temperature, restraint, t1, t2
+):
     fast, slow = sorted((t1, t2))
     a = estimate_run(material, "3/4", length, flow, fast, static, temperature, restraint)
     b = estimate_run(material, "3/4", length, flow, slow, static, temperature, restraint)
@@ -32,8 +33,9 @@ def test_slower_closure_never_raises_surge(material, length, flow, static, tempe
 
 @settings(max_examples=150, deadline=None)
 @given(**run, closure=st.floats(0.001, 5.0), data=st.data())
-def test_larger_pipe_never_raises_velocity_or_surge(material, length, flow, static, temperature,
-                                                    restraint, closure, data):
+def test_larger_pipe_never_raises_velocity_or_surge(
+    material, length, flow, static, temperature, restraint, closure, data
+):
     sizes = [s.nominal for s in catalog.sizes(material)]
     i = data.draw(st.integers(0, len(sizes) - 2))
     j = data.draw(st.integers(i + 1, len(sizes) - 1))
@@ -45,16 +47,22 @@ def test_larger_pipe_never_raises_velocity_or_surge(material, length, flow, stat
 
 @settings(max_examples=100, deadline=None)
 @given(**run, closure=st.floats(0.001, 5.0))
-def test_peak_at_least_static_and_finite(material, length, flow, static, temperature, restraint,
-                                         closure):
+def test_peak_at_least_static_and_finite(
+    material, length, flow, static, temperature, restraint, closure
+):
     r = estimate_run(material, "1", length, flow, closure, static, temperature, restraint)
     assert r.peak_pressure_pa >= r.static_pressure_pa
     assert r.surge_pa >= 0
 
 
 @settings(max_examples=60, deadline=None)
-@given(length=st.floats(0.5, 100.0), flow=st.floats(1e-5, 1e-3), closure=st.floats(0.001, 5.0),
-       t_lo=st.floats(20.0, 40.0), t_hi=st.floats(40.0, 80.0))
+@given(
+    length=st.floats(0.5, 100.0),
+    flow=st.floats(1e-5, 1e-3),
+    closure=st.floats(0.001, 5.0),
+    t_lo=st.floats(20.0, 40.0),
+    t_hi=st.floats(40.0, 80.0),
+)
 def test_softer_plastic_never_raises_surge(length, flow, closure, t_lo, t_hi):
     # PEX softens when hot (CHECKS.md: 465 / 350 / 228 MPa at 20 / 30 / 40 C): at the same velocity
     # the hotter, more flexible pipe gives the lower wave speed and so no higher surge.

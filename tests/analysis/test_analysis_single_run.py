@@ -91,7 +91,9 @@ elevation = 0
 
 def test_tree_event_single_run(write):
     # Supply -> 12 m of 3/4 L -> washer (cold only, 4 gpm catalog flow, 25 ms solenoid).
-    text = BASE + """
+    text = (
+        BASE
+        + """
 [[pipe]]
 id = "P1"
 from = "S"
@@ -106,6 +108,7 @@ cold = "W"
 flow = "4 gpm"
 closure_time = "5 ms"
 """
+    )
     a = analyze(write(text))
     (ev,) = a.events
     D = (0.875 - 2 * 0.045) * 0.0254
@@ -122,7 +125,9 @@ closure_time = "5 ms"
 
 def test_static_pressure_falls_with_rise(write):
     # p = p0 - rho g dz (hydrostatics); rho from IAPWS-95 at 15 C.
-    text = BASE + """
+    text = (
+        BASE
+        + """
 [[pipe]]
 id = "R"
 from = "S"
@@ -136,6 +141,7 @@ id = "lav"
 kind = "lavatory"
 cold = "top"
 """
+    )
     a = analyze(write(text))
     rho, _ = water(15.0)
     assert a.node("top").static_pressure_pa == pytest.approx(400e3 - rho * 9.80665 * 25, rel=1e-4)
@@ -145,7 +151,9 @@ cold = "top"
 def test_tee_to_large_main_bounds_reflection(write):
     # A 1/2 in branch off a 2 in main: at the tee Y_main >> Y_branch, the wave reflects strongly
     # (Wylie & Streeter: transmission 2 Y_in / sum Y), so the reflection length is the branch alone.
-    text = BASE + """
+    text = (
+        BASE
+        + """
 [[pipe]]
 id = "M1"
 from = "S"
@@ -177,6 +185,7 @@ id = "hb"
 kind = "hose-bibb"
 cold = "end"
 """
+    )
     a = analyze(write(text))
     (ev,) = [e for e in a.events if e.fixtures == ("lav",)]
     assert ev.reflection_node == "T"
@@ -191,7 +200,9 @@ cold = "end"
 def test_hot_demand_flows_through_cold_main(write):
     # A fixture drawing both sides counts with its total fixture units in the cold pipe that also
     # feeds the heater (IPC Table E103.3(2): kitchen sink private 1 / 1 / 1.4).
-    text = BASE + """
+    text = (
+        BASE
+        + """
 [[supply]]
 node = "WH"
 kind = "heater-outlet"
@@ -232,6 +243,7 @@ kind = "kitchen-sink"
 cold = "K"
 hot = "Kh"
 """
+    )
     a = analyze(write(text))
     assert a.pipe("C1").fixture_units == pytest.approx(1.4)
     assert a.pipe("C3").fixture_units == pytest.approx(1.0)

@@ -38,8 +38,14 @@ def test_check_json_contract(cli):
     assert {"id", "velocity_m_per_s", "wave_speed_m_per_s"} <= set(d["pipes"][0])
     assert {"id", "static_pressure_pa"} <= set(d["nodes"][0])
     ev = d["events"][0]
-    for key in ("fixture", "node", "closure_time_s", "critical_time_s", "surge_pa",
-                "peak_pressure_pa"):
+    for key in (
+        "fixture",
+        "node",
+        "closure_time_s",
+        "critical_time_s",
+        "surge_pa",
+        "peak_pressure_pa",
+    ):
         assert key in ev
     assert all(e["peak_pressure_pa"] >= e["static_pressure_pa"] for e in d["events"])
     assert "qualified person" in d["caution"]
@@ -52,12 +58,33 @@ def test_check_json_is_deterministic(cli):
 
 
 def test_estimate_json_contract_and_values(cli):
-    r = cli("estimate", "--material", "copper-L", "--size", "3/4", "--length", "15 m", "--flow",
-            "5 gpm", "--closure", "20 ms", "--static", "60 psi", "--format", "json")
+    r = cli(
+        "estimate",
+        "--material",
+        "copper-L",
+        "--size",
+        "3/4",
+        "--length",
+        "15 m",
+        "--flow",
+        "5 gpm",
+        "--closure",
+        "20 ms",
+        "--static",
+        "60 psi",
+        "--format",
+        "json",
+    )
     assert r.returncode == 0, r.stderr
     d = json.loads(r.stdout)
-    for key in ("velocity_m_per_s", "wave_speed_m_per_s", "critical_time_s", "closure", "surge_pa",
-                "peak_pressure_pa"):
+    for key in (
+        "velocity_m_per_s",
+        "wave_speed_m_per_s",
+        "critical_time_s",
+        "closure",
+        "surge_pa",
+        "peak_pressure_pa",
+    ):
         assert key in d
     # velocity = Q / A with B88 3/4 L: ID = 0.875 - 2 x 0.045 in (CHECKS.md)
     area = 3.141592653589793 * ((0.875 - 0.09) * 0.0254) ** 2 / 4
@@ -67,16 +94,42 @@ def test_estimate_json_contract_and_values(cli):
 
 
 def test_estimate_text_in_us_units(cli):
-    r = cli("estimate", "--material", "pex-sdr9", "--size", "1/2", "--length", "40 ft", "--flow",
-            "2 gpm", "--closure", "25 ms", "--static", "60 psi")
+    r = cli(
+        "estimate",
+        "--material",
+        "pex-sdr9",
+        "--size",
+        "1/2",
+        "--length",
+        "40 ft",
+        "--flow",
+        "2 gpm",
+        "--closure",
+        "25 ms",
+        "--static",
+        "60 psi",
+    )
     assert r.returncode == 0
     assert "psi" in r.stdout and "ft/s" in r.stdout
     assert "qualified person" in r.stdout
 
 
 def test_estimate_bad_value_exit_2(cli):
-    r = cli("estimate", "--material", "copper-L", "--size", "3/4", "--length", "60 psi", "--flow",
-            "5 gpm", "--closure", "20 ms", "--static", "60 psi")
+    r = cli(
+        "estimate",
+        "--material",
+        "copper-L",
+        "--size",
+        "3/4",
+        "--length",
+        "60 psi",
+        "--flow",
+        "5 gpm",
+        "--closure",
+        "20 ms",
+        "--static",
+        "60 psi",
+    )
     assert r.returncode == 2
     assert "--length" in r.stderr and "expected a length" in r.stderr
     assert "Traceback" not in r.stderr
@@ -84,8 +137,21 @@ def test_estimate_bad_value_exit_2(cli):
 
 
 def test_estimate_unknown_material_exit_2(cli):
-    r = cli("estimate", "--material", "unobtainium", "--size", "3/4", "--length", "10 m", "--flow",
-            "5 gpm", "--closure", "20 ms", "--static", "60 psi")
+    r = cli(
+        "estimate",
+        "--material",
+        "unobtainium",
+        "--size",
+        "3/4",
+        "--length",
+        "10 m",
+        "--flow",
+        "5 gpm",
+        "--closure",
+        "20 ms",
+        "--static",
+        "60 psi",
+    )
     assert r.returncode == 2
     assert "unobtainium" in r.stderr and "copper-L" in r.stderr
 
@@ -133,7 +199,20 @@ def test_schema_validates_every_example(cli):
 def test_catalog_lists_fixed_keys(cli):
     r = cli("catalog")
     assert r.returncode == 0
-    for key in ("copper-K", "copper-L", "copper-M", "pex-sdr9", "cpvc-sdr11", "pvc-sch40",
-                "pvc-sch80", "steel-sch40", "stainless-sch10s", "clothes-washer", "dishwasher",
-                "ice-maker", "water-closet-flush-valve", "sensor-faucet"):
+    for key in (
+        "copper-K",
+        "copper-L",
+        "copper-M",
+        "pex-sdr9",
+        "cpvc-sdr11",
+        "pvc-sch40",
+        "pvc-sch80",
+        "steel-sch40",
+        "stainless-sch10s",
+        "clothes-washer",
+        "dishwasher",
+        "ice-maker",
+        "water-closet-flush-valve",
+        "sensor-faucet",
+    ):
         assert key in r.stdout

@@ -58,8 +58,14 @@ def test_arrestor_lowers_the_peak(clinic):
 
 def _cli(*args):
     env = {**os.environ, "NO_COLOR": "1", "COLUMNS": "100"}
-    return subprocess.run([sys.executable, "-m", "knockproof", *args], capture_output=True,
-                          text=True, env=env, cwd=ROOT, timeout=600)
+    return subprocess.run(
+        [sys.executable, "-m", "knockproof", *args],
+        capture_output=True,
+        text=True,
+        env=env,
+        cwd=ROOT,
+        timeout=600,
+    )
 
 
 def test_check_json_carries_simulated_fields():

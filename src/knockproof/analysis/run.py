@@ -37,9 +37,15 @@ def analyze_tree(tree: nx.DiGraph, simultaneous: bool = False) -> Analysis:
     events = closure_events(tree, pipes, nodes, densities, simultaneous=simultaneous)
     t2 = time.perf_counter()
     return Analysis(
-        building_name=b.name, source=b.source, unit_system=b.unit_system,
-        density_cold_kg_m3=densities["cold"], density_hot_kg_m3=densities["hot"], pipes=pipes,
-        nodes=nodes, events=events, assumptions=ASSUMPTIONS,
+        building_name=b.name,
+        source=b.source,
+        unit_system=b.unit_system,
+        density_cold_kg_m3=densities["cold"],
+        density_hot_kg_m3=densities["hot"],
+        pipes=pipes,
+        nodes=nodes,
+        events=events,
+        assumptions=ASSUMPTIONS,
         timings_s={"steady_flow": t1 - t0, "events": t2 - t1},
     )
 

@@ -53,18 +53,35 @@ def estimate_run(
     m = catalog.get_material(material)
     s = catalog.get_size(material, catalog.normalize_nominal(size))
     w = water_at(temperature_c)
-    a = ws.wave_speed(w.bulk_modulus, w.density, m.elastic_modulus_pa(temperature_c),
-                      m.poisson_ratio, s.inside_diameter_m, s.wall_m, restraint)
+    a = ws.wave_speed(
+        w.bulk_modulus,
+        w.density,
+        m.elastic_modulus_pa(temperature_c),
+        m.poisson_ratio,
+        s.inside_diameter_m,
+        s.wall_m,
+        restraint,
+    )
     area = math.pi * s.inside_diameter_m**2 / 4.0
     v = flow_m3_per_s / area
     tcrit = sg.critical_time_s(length_m, a)
     surge = sg.closure_surge_pa(w.density, a, length_m, v, closure_time_s)
     return RunEstimate(
-        material=material, nominal_size=s.nominal, inside_diameter_m=s.inside_diameter_m,
-        length_m=length_m, flow_m3_per_s=flow_m3_per_s, closure_time_s=closure_time_s,
-        static_pressure_pa=static_pressure_pa, temperature_c=temperature_c, restraint=restraint,
-        density_kg_m3=w.density, velocity_m_per_s=v, wave_speed_m_per_s=a, critical_time_s=tcrit,
+        material=material,
+        nominal_size=s.nominal,
+        inside_diameter_m=s.inside_diameter_m,
+        length_m=length_m,
+        flow_m3_per_s=flow_m3_per_s,
+        closure_time_s=closure_time_s,
+        static_pressure_pa=static_pressure_pa,
+        temperature_c=temperature_c,
+        restraint=restraint,
+        density_kg_m3=w.density,
+        velocity_m_per_s=v,
+        wave_speed_m_per_s=a,
+        critical_time_s=tcrit,
         closure="rapid" if sg.is_rapid_closure(closure_time_s, tcrit) else "slow",
-        joukowsky_surge_pa=sg.joukowsky_surge_pa(w.density, a, v), surge_pa=surge,
+        joukowsky_surge_pa=sg.joukowsky_surge_pa(w.density, a, v),
+        surge_pa=surge,
         peak_pressure_pa=static_pressure_pa + surge,
     )

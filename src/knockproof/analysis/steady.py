@@ -46,14 +46,19 @@ def pipe_wave_speed(p: Pipe, w: Water) -> float:
     """Wave speed of a pipe with water ``w`` [m/s] (Korteweg with restraint factor)."""
     m = catalog.get_material(p.material)
     return ws.wave_speed(
-        w.bulk_modulus, w.density, m.elastic_modulus_pa(w.temperature_c), m.poisson_ratio,
-        p.inside_diameter_m, p.wall_m, p.restraint,
+        w.bulk_modulus,
+        w.density,
+        m.elastic_modulus_pa(w.temperature_c),
+        m.poisson_ratio,
+        p.inside_diameter_m,
+        p.wall_m,
+        p.restraint,
     )
 
 
-def _demand_units(tree: nx.DiGraph, building: Building) -> tuple[
-    dict[str, float], dict[str, bool], dict[str, float]
-]:
+def _demand_units(
+    tree: nx.DiGraph, building: Building
+) -> tuple[dict[str, float], dict[str, bool], dict[str, float]]:
     """Per pipe id: fixture units, whether a flush valve is downstream, largest single flow."""
     units: dict[str, float] = {}
     flush: dict[str, bool] = {}
@@ -111,25 +116,47 @@ def steady_flow(tree: nx.DiGraph) -> tuple[tuple[PipeResult, ...], tuple[NodeRes
         m = catalog.get_material(p.material)
         fu = units.get(p.id, 0.0)
         fv = flush.get(p.id, False)
-        q = max(demand.design_flow_m3_per_s(fu, fv), largest.get(p.id, 0.0)) if fu > 0 else (
-            largest.get(p.id, 0.0))
+        q = (
+            max(demand.design_flow_m3_per_s(fu, fv), largest.get(p.id, 0.0))
+            if fu > 0
+            else (largest.get(p.id, 0.0))
+        )
         area = 3.141592653589793 * p.inside_diameter_m**2 / 4
         vel = q / area
         re = friction.reynolds(vel, p.inside_diameter_m, w.density, w.viscosity)
         f = friction.friction_factor(re, m.roughness_m / p.inside_diameter_m)
-        hl = friction.head_loss_m(q, p.length_m + p.fittings_length_m, p.inside_diameter_m,
-                                  m.roughness_m, w.density, w.viscosity)
+        hl = friction.head_loss_m(
+            q,
+            p.length_m + p.fittings_length_m,
+            p.inside_diameter_m,
+            m.roughness_m,
+            w.density,
+            w.viscosity,
+        )
         size = catalog.get_size(p.material, p.nominal_size)
         rating = size.pressure_rating_pa
         if side == "hot" and size.pressure_rating_hot_pa is not None:
             rating = size.pressure_rating_hot_pa
         pipe_results[p.id] = PipeResult(
-            id=p.id, upstream=u, downstream=v, side=side, material=p.material,
-            nominal_size=p.nominal_size, length_m=p.length_m, inside_diameter_m=p.inside_diameter_m,
-            temperature_c=w.temperature_c, fixture_units=fu, flush_valve_demand=fv,
-            design_flow_m3_per_s=q, velocity_m_per_s=vel, reynolds=re, friction_factor=f,
-            head_loss_m=hl, wave_speed_m_per_s=pipe_wave_speed(p, w),
-            pressure_rating_pa=rating, label=p.label,
+            id=p.id,
+            upstream=u,
+            downstream=v,
+            side=side,
+            material=p.material,
+            nominal_size=p.nominal_size,
+            length_m=p.length_m,
+            inside_diameter_m=p.inside_diameter_m,
+            temperature_c=w.temperature_c,
+            fixture_units=fu,
+            flush_valve_demand=fv,
+            design_flow_m3_per_s=q,
+            velocity_m_per_s=vel,
+            reynolds=re,
+            friction_factor=f,
+            head_loss_m=hl,
+            wave_speed_m_per_s=pipe_wave_speed(p, w),
+            pressure_rating_pa=rating,
+            label=p.label,
         )
     nodes = _pressures(tree, building, pipe_results, waters)
     order = {p.id: i for i, p in enumerate(building.pipes)}
@@ -137,8 +164,9 @@ def steady_flow(tree: nx.DiGraph) -> tuple[tuple[PipeResult, ...], tuple[NodeRes
     return pipes, nodes
 
 
-def _pressures(tree: nx.DiGraph, building: Building, pipes: dict[str, PipeResult],
-               waters: dict[str, Water]) -> tuple[NodeResult, ...]:
+def _pressures(
+    tree: nx.DiGraph, building: Building, pipes: dict[str, PipeResult], waters: dict[str, Water]
+) -> tuple[NodeResult, ...]:
     static: dict[str, float] = {}
     residual: dict[str, float] = {}
     prv = {d.node: d.setting_pa for d in building.devices if d.kind == "prv" and d.setting_pa}
@@ -166,6 +194,9 @@ def _pressures(tree: nx.DiGraph, building: Building, pipes: dict[str, PipeResult
                 residual[v] = min(residual[v], prv[v])
     out = []
     for n, data in tree.nodes(data=True):
-        out.append(NodeResult(n, data["side"], data["elevation_m"], static[n], residual[n],
-                              data.get("label", "")))
+        out.append(
+            NodeResult(
+                n, data["side"], data["elevation_m"], static[n], residual[n], data.get("label", "")
+            )
+        )
     return tuple(out)

@@ -59,7 +59,9 @@ def summarize(tree: nx.DiGraph) -> TreeSummary:
         for (m, s), v in sorted(groups.items(), key=lambda kv: (kv[0][0], _size_key(kv[0][1])))
     )
     kinds = Counter(f.kind for f in b.fixtures)
-    levels = {round(tree.nodes[n]["elevation_m"] * 2) / 2 for n in tree if tree.nodes[n]["fixtures"]}
+    levels = {
+        round(tree.nodes[n]["elevation_m"] * 2) / 2 for n in tree if tree.nodes[n]["fixtures"]
+    }
     quick = sum(1 for f in b.fixtures if f.quick_closing for _ in f.sides)
     return TreeSummary(
         name=b.name,

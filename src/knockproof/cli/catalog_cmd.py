@@ -31,8 +31,13 @@ def command(
         for c in ("key", "name", "modulus at 20 °C", "Poisson", "roughness"):
             t.add_column(c)
         for m in catalog.materials():
-            t.add_row(m.key, m.name, f"{m.elastic_modulus_pa(20.0) / 1e9:.3g} GPa",
-                      f"{m.poisson_ratio:.2f}", f"{m.roughness_m * 1e6:.1f} µm")
+            t.add_row(
+                m.key,
+                m.name,
+                f"{m.elastic_modulus_pa(20.0) / 1e9:.3g} GPa",
+                f"{m.poisson_ratio:.2f}",
+                f"{m.roughness_m * 1e6:.1f} µm",
+            )
         console.print(t)
     if section in ("sizes", "all"):
         keys = [material] if material else [m.key for m in catalog.materials()]
@@ -45,19 +50,28 @@ def command(
             for c in ("nominal", "outside", "wall", "inside", "rating"):
                 t.add_column(c, justify="right")
             for s in rows:
-                t.add_row(s.nominal, fmt(s.outside_diameter_m, "diameter", units, 3),
-                          fmt(s.wall_m, "diameter", units, 3),
-                          fmt(s.inside_diameter_m, "diameter", units, 3),
-                          fmt(s.pressure_rating_pa, "pressure", units, 0))
+                t.add_row(
+                    s.nominal,
+                    fmt(s.outside_diameter_m, "diameter", units, 3),
+                    fmt(s.wall_m, "diameter", units, 3),
+                    fmt(s.inside_diameter_m, "diameter", units, 3),
+                    fmt(s.pressure_rating_pa, "pressure", units, 0),
+                )
             console.print(t)
     if section in ("fixtures", "all"):
         t = Table(title="Fixture kinds", title_justify="left", show_edge=False)
         for c in ("key", "sides", "flow", "valve", "closure", "quick", "WSFU priv/pub"):
             t.add_column(c)
         for k in catalog.fixture_kinds():
-            t.add_row(k.key, "+".join(k.sides), fmt(k.flow_m3_per_s, "flow", units, 2), k.valve,
-                      fmt(k.closure_time_s, "time", units, 0), "yes" if k.quick_closing else "no",
-                      f"{k.wsfu_private[2]:g}/{k.wsfu_public[2]:g}")
+            t.add_row(
+                k.key,
+                "+".join(k.sides),
+                fmt(k.flow_m3_per_s, "flow", units, 2),
+                k.valve,
+                fmt(k.closure_time_s, "time", units, 0),
+                "yes" if k.quick_closing else "no",
+                f"{k.wsfu_private[2]:g}/{k.wsfu_public[2]:g}",
+            )
         console.print(t)
     if section in ("arrestors", "all"):
         t = Table(title="Arrestor size classes", title_justify="left", show_edge=False)

@@ -62,7 +62,6 @@ def command(
         console.print(CAUTION)
         return 0
     from knockproof.rules import review as run_review
-
     from knockproof.rules.review import resolve_profile
 
     prof = resolve_profile(profile, building.source, building.profile)
@@ -81,15 +80,15 @@ def command(
         limit = float(prof.params("surge.peak-limit")["limit_pa"])
         advice = advise(tree, analysis, limit_pa=limit)
     if format == "json":
-        from knockproof.report.json_out import analysis_to_json, dumps
+        from knockproof.report.json_out import analysis_to_json, arrestor_checks_to_json, dumps
         from knockproof.rules import review_to_json
-
-        from knockproof.report.json_out import arrestor_checks_to_json
 
         data = analysis_to_json(analysis)
         data.update(review_to_json(review))
-        data["simulation"] = {"run": not no_simulation,
-                              "arrestor_checks": arrestor_checks_to_json(checks)}
+        data["simulation"] = {
+            "run": not no_simulation,
+            "arrestor_checks": arrestor_checks_to_json(checks),
+        }
         if advice is not None:
             from knockproof.advice import advice_to_json
 
@@ -102,8 +101,9 @@ def command(
         from knockproof.report.markdown import analysis_markdown
         from knockproof.report.review_markdown import review_markdown
 
-        write_text(review_markdown(review, findings) + "\n" + analysis_markdown(analysis,
-                                                                                header=False))
+        write_text(
+            review_markdown(review, findings) + "\n" + analysis_markdown(analysis, header=False)
+        )
         return review.exit_status
     from knockproof.report import terminal
     from knockproof.report.review_text import render_review
@@ -116,9 +116,14 @@ def command(
         from knockproof.report.advice_text import render_advice
 
         shown = advice[:events] if events > 0 else advice
-        render_advice(console, shown, analysis.building_name,
-                      float(prof.params("surge.peak-limit")["limit_pa"]), analysis.unit_system,
-                      len(advice) - len(shown))
+        render_advice(
+            console,
+            shown,
+            analysis.building_name,
+            float(prof.params("surge.peak-limit")["limit_pa"]),
+            analysis.unit_system,
+            len(advice) - len(shown),
+        )
     terminal.render_pipes(console, analysis)
     terminal.render_assumptions(console, analysis)
     console.print(CAUTION)

@@ -29,9 +29,13 @@ def command(
     from knockproof.model.units import QuantityError, parse_quantity
 
     values = {}
-    for name, raw, kind in (("length", length, "length"), ("flow", flow, "flow"),
-                            ("closure", closure, "time"), ("static", static, "pressure"),
-                            ("temperature", temperature, "temperature")):
+    for name, raw, kind in (
+        ("length", length, "length"),
+        ("flow", flow, "flow"),
+        ("closure", closure, "time"),
+        ("static", static, "pressure"),
+        ("temperature", temperature, "temperature"),
+    ):
         try:
             values[name] = parse_quantity(_number_or_text(raw), kind, units)  # type: ignore[arg-type]
         except QuantityError as e:
@@ -39,13 +43,23 @@ def command(
         if kind != "temperature" and values[name] <= 0:
             raise UsageError(f"--{name}: must be more than zero, found '{raw}'")
     if not 1.0 <= values["temperature"] <= 99.0:
-        raise UsageError(f"--temperature: expected liquid water, 1 to 99 degC, found '{temperature}'")
+        raise UsageError(
+            f"--temperature: expected liquid water, 1 to 99 degC, found '{temperature}'"
+        )
     from knockproof import catalog
     from knockproof.analysis.single_run import estimate_run
 
     try:
-        r = estimate_run(material, size, values["length"], values["flow"], values["closure"],
-                         values["static"], values["temperature"], restraint)
+        r = estimate_run(
+            material,
+            size,
+            values["length"],
+            values["flow"],
+            values["closure"],
+            values["static"],
+            values["temperature"],
+            restraint,
+        )
     except (KeyError, ValueError) as e:
         raise UsageError(str(e.args[0]) if e.args else str(e)) from None
     _ = catalog

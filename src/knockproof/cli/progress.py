@@ -6,8 +6,9 @@ import sys
 from typing import Any
 
 
-def simulate_with_progress(tree: Any, analysis: Any, review: Any, profile: Any,
-                           workers: int | None) -> tuple[Any, list[Any]]:
+def simulate_with_progress(
+    tree: Any, analysis: Any, review: Any, profile: Any, workers: int | None
+) -> tuple[Any, list[Any]]:
     """Simulate every event (bare and with the scheduled arrestors) and check arrestor volumes."""
     from knockproof.transient.run import simulate_all, verify_arrestors
 
@@ -21,8 +22,9 @@ def simulate_with_progress(tree: Any, analysis: Any, review: Any, profile: Any,
 
         with Progress(console=err(), transient=True) as bar:
             task = bar.add_task("simulating closure events", total=total)
-            analysis, _, _ = simulate_all(tree, analysis, arrestors, workers,
-                                          lambda n: bar.advance(task, n))
+            analysis, _, _ = simulate_all(
+                tree, analysis, arrestors, workers, lambda n: bar.advance(task, n)
+            )
             checks = verify_arrestors(tree, analysis, arrestors, limit, workers)
     else:
         analysis, _, _ = simulate_all(tree, analysis, arrestors, workers)

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import os
 from pathlib import Path
-from typing import Any
 
 import typer
 
@@ -15,7 +14,9 @@ def command(
         None, "--output", "-o", help="HTML report to write (NAME.html).", show_default=False
     ),
     schedule: Path | None = typer.Option(
-        None, "--schedule", help="Also write the site schedule: NAME.csv or NAME.json.",
+        None,
+        "--schedule",
+        help="Also write the site schedule: NAME.csv or NAME.json.",
         show_default=False,
     ),
     example: bool = typer.Option(
@@ -46,8 +47,9 @@ def command(
     if schedule is not None:
         _check_target(schedule, "--schedule", path)
         if _same(schedule, output):
-            raise UsageError("--schedule: the schedule would overwrite the HTML report; "
-                             "give it another name")
+            raise UsageError(
+                "--schedule: the schedule would overwrite the HTML report; give it another name"
+            )
 
     from knockproof.analysis.run import analyze_tree
     from knockproof.cli.output import out
@@ -77,8 +79,11 @@ def command(
     html = render_html(tree, analysis, review, simulations)
     write_atomic(output, html)
     console = out()
-    console.print(f"Wrote {output} ({len(html.encode('utf-8')) / 1e3:,.0f} kB).", markup=False,
-                  highlight=False)
+    console.print(
+        f"Wrote {output} ({len(html.encode('utf-8')) / 1e3:,.0f} kB).",
+        markup=False,
+        highlight=False,
+    )
     if schedule is not None:
         from knockproof.report.schedule_csv import (
             schedule_rows,
@@ -92,8 +97,9 @@ def command(
         else:
             write_schedule_csv(schedule, rows, analysis.unit_system)
         console.print(f"Wrote {schedule} ({len(rows)} arrestors).", markup=False, highlight=False)
-    verdict = str(getattr(review, "verdict", "not evaluated")) if review is not None \
-        else "not evaluated"
+    verdict = (
+        str(getattr(review, "verdict", "not evaluated")) if review is not None else "not evaluated"
+    )
     console.print(f"Verdict: {verdict}.", markup=False, highlight=False)
     console.print(CAUTION, markup=False, highlight=False)
     return 1 if verdict == "fail" else 0

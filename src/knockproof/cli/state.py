@@ -39,8 +39,10 @@ def run_app(app: Callable[..., Any]) -> int:
             raise
         from knockproof.cli.output import error
 
-        error(f"internal error: {type(e).__name__}: {e} (run with --debug for a traceback, and "
-              "please report it)")
+        error(
+            f"internal error: {type(e).__name__}: {e} (run with --debug for a traceback, and "
+            "please report it)"
+        )
         return 2
     return 0
 

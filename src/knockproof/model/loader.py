@@ -64,10 +64,16 @@ def read_document(path: str | Path) -> tuple[BuildingFile, LineIndex]:
     if p.is_dir():
         raise InputError.single(file, "file", "", "is a directory, not a building file")
     if not p.is_file():
-        raise InputError.single(file, "file", "", "is not a regular file (a device, pipe or "
-                                "socket); give a building file")
-    too_big = (f"is larger than {MAX_FILE_BYTES:,} bytes, the limit for building files (use "
-               "templates for repeated floors)")
+        raise InputError.single(
+            file,
+            "file",
+            "",
+            "is not a regular file (a device, pipe or socket); give a building file",
+        )
+    too_big = (
+        f"is larger than {MAX_FILE_BYTES:,} bytes, the limit for building files (use "
+        "templates for repeated floors)"
+    )
     try:
         if p.stat().st_size > MAX_FILE_BYTES:
             raise InputError.single(file, "file", "", too_big)
@@ -78,7 +84,9 @@ def read_document(path: str | Path) -> tuple[BuildingFile, LineIndex]:
     except OSError as e:
         raise InputError.single(file, "file", "", f"cannot be read: {e.strerror or e}") from None
     if not raw.strip():
-        raise InputError.single(file, "file", "", "is empty; `knockproof new` writes a starter file")
+        raise InputError.single(
+            file, "file", "", "is empty; `knockproof new` writes a starter file"
+        )
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as e:
@@ -98,8 +106,9 @@ def read_document(path: str | Path) -> tuple[BuildingFile, LineIndex]:
     except RecursionError:
         raise InputError.single(file, "file", "", "nests tables or arrays too deeply") from None
     except ValueError as e:  # e.g. an integer of more digits than Python converts
-        raise InputError.single(file, "file", "", "is not valid TOML: a value cannot be read "
-                                f"({str(e)[:80]})") from None
+        raise InputError.single(
+            file, "file", "", f"is not valid TOML: a value cannot be read ({str(e)[:80]})"
+        ) from None
     lines = LineIndex(text)
     try:
         doc = BuildingFile.model_validate(data)
@@ -124,13 +133,21 @@ def _validation_problems(
             continue
         seen.add((item, field))
         problems.append(
-            Problem(file, item, field, _pydantic_message(e), lines.line(key, field) if key else None)
+            Problem(
+                file, item, field, _pydantic_message(e), lines.line(key, field) if key else None
+            )
         )
     return problems
 
 
-_UNION_TAGS = {"str", "float", "int", "list[union[str,int]]", "function-after[...]",
-               "literal['us','si']"}
+_UNION_TAGS = {
+    "str",
+    "float",
+    "int",
+    "list[union[str,int]]",
+    "function-after[...]",
+    "literal['us','si']",
+}
 
 
 def _split_loc(loc: list[Any]) -> tuple[tuple[Any, ...] | None, list[Any]]:
@@ -155,8 +172,9 @@ def _item_name(data: dict[str, Any], key: tuple[Any, ...] | None) -> str:
     try:
         if key[0] == "template":
             t = data["template"][key[1]]
-            tname = _short(t.get("name", f"#{key[1] + 1}")) if isinstance(t, dict) else \
-                f"#{key[1] + 1}"
+            tname = (
+                _short(t.get("name", f"#{key[1] + 1}")) if isinstance(t, dict) else f"#{key[1] + 1}"
+            )
             if len(key) == 2:
                 return f'template "{tname}"'
             entry = t[key[2]][key[3]]
@@ -208,8 +226,15 @@ class _Collector:
         self.problems.append(Problem(self.file, item, field, message, self.lines.line(key, field)))
 
     def q(
-        self, value: Any, kind: str, item: str, field: str, key: tuple[Any, ...] | None,
-        limit: str | None = None, positive: bool = False, allow_zero: bool = False,
+        self,
+        value: Any,
+        kind: str,
+        item: str,
+        field: str,
+        key: tuple[Any, ...] | None,
+        limit: str | None = None,
+        positive: bool = False,
+        allow_zero: bool = False,
     ) -> float | None:
         if value is None:
             return None
@@ -219,15 +244,25 @@ class _Collector:
             self.add(item, field, str(e), key)
             return None
         if positive and (v < 0 or (v == 0 and not allow_zero)):
-            self.add(item, field, f"must be {'zero or more' if allow_zero else 'more than zero'}, "
-                     f"found {_shown(value)}", key)
+            self.add(
+                item,
+                field,
+                f"must be {'zero or more' if allow_zero else 'more than zero'}, "
+                f"found {_shown(value)}",
+                key,
+            )
             return None
         if limit is not None:
             lo, hi = LIMITS[limit]
             if v > hi or v < lo:
-                self.add(item, field, f"{value!r} is outside the plausible range for a "
-                         f"{field.replace('_', ' ')} ({_show_range(limit, self.units)}); "
-                         "check the value and its unit", key)
+                self.add(
+                    item,
+                    field,
+                    f"{value!r} is outside the plausible range for a "
+                    f"{field.replace('_', ' ')} ({_show_range(limit, self.units)}); "
+                    "check the value and its unit",
+                    key,
+                )
                 return None
         return v
 
@@ -236,9 +271,15 @@ def _show_range(limit: str, units: str) -> str:
     from knockproof.model.units import fmt
 
     lo, hi = LIMITS[limit]
-    kind = {"length": "length", "static_pressure": "pressure", "temperature": "temperature",
-            "flow": "flow", "closure_time": "time", "gas_volume": "volume",
-            "elevation": "length"}[limit]
+    kind = {
+        "length": "length",
+        "static_pressure": "pressure",
+        "temperature": "temperature",
+        "flow": "flow",
+        "closure_time": "time",
+        "gas_volume": "volume",
+        "elevation": "length",
+    }[limit]
     return f"{fmt(lo, kind, units, 1)} to {fmt(hi, kind, units, 1)}"
 
 
@@ -268,10 +309,22 @@ def load_building(path: str | Path) -> Building:
     units = b.units
     c = _Collector(file, lines, units)
     bkey = ("building",)
-    cold_t = c.q(b.cold_water_temperature, "temperature", "[building]", "cold_water_temperature",
-                 bkey, "temperature")
-    hot_t = c.q(b.hot_water_temperature, "temperature", "[building]", "hot_water_temperature",
-                bkey, "temperature")
+    cold_t = c.q(
+        b.cold_water_temperature,
+        "temperature",
+        "[building]",
+        "cold_water_temperature",
+        bkey,
+        "temperature",
+    )
+    hot_t = c.q(
+        b.hot_water_temperature,
+        "temperature",
+        "[building]",
+        "hot_water_temperature",
+        bkey,
+        "temperature",
+    )
     cold_t = 15.0 if cold_t is None else cold_t
     hot_t = 60.0 if hot_t is None else hot_t
     d = doc.defaults
@@ -283,16 +336,26 @@ def load_building(path: str | Path) -> Building:
         item = f'supply "{s.node}"'
         sp = c.q(s.static_pressure, "pressure", item, "static_pressure", key, "static_pressure")
         if s.static_pressure is not None and sp is not None and sp <= 0:
-            c.add(item, "static_pressure", f"must be more than zero, found {_shown(s.static_pressure)}",
-                  key)
+            c.add(
+                item,
+                "static_pressure",
+                f"must be more than zero, found {_shown(s.static_pressure)}",
+                key,
+            )
         if s.static_pressure is None and not (s.kind == "heater-outlet" and s.fed_from):
-            c.add(item, "static_pressure", "is required (only a heater outlet with 'fed_from' "
-                  "takes its pressure from the cold side)", key)
+            c.add(
+                item,
+                "static_pressure",
+                "is required (only a heater outlet with 'fed_from' "
+                "takes its pressure from the cold side)",
+                key,
+            )
         if s.kind == "heater-outlet" and s.side != "hot":
-            c.add(item, "side", "a heater outlet supplies the hot side; set side = \"hot\"", key)
+            c.add(item, "side", 'a heater outlet supplies the hot side; set side = "hot"', key)
         elev = c.q(s.elevation, "length", item, "elevation", key, "elevation")
-        supplies.append(Supply(s.node, s.kind, s.side, sp, elev or 0.0, s.fed_from,
-                               lines.line(key)))
+        supplies.append(
+            Supply(s.node, s.kind, s.side, sp, elev or 0.0, s.fed_from, lines.line(key))
+        )
 
     pipes: list[Pipe] = []
     fixtures: list[Fixture] = []
@@ -318,16 +381,25 @@ def load_building(path: str | Path) -> Building:
             assert isinstance(a, ArrestorIn)
             item = _name("arrestor", a, it.origin, n)
             gv = c.q(a.gas_volume, "volume", item, "gas_volume", key, "gas_volume", positive=True)
-            arrestors.append(Arrestor(a.id or f"arrestor@{a.node}", a.node, a.side or "cold",
-                                      a.size, gv, lines.line(key)))
+            arrestors.append(
+                Arrestor(
+                    a.id or f"arrestor@{a.node}",
+                    a.node,
+                    a.side or "cold",
+                    a.size,
+                    gv,
+                    lines.line(key),
+                )
+            )
             if a.side is None:
                 unresolved.add(len(arrestors) - 1)
         elif it.kind == "device":
             dv = it.model
             assert isinstance(dv, DeviceIn)
             item = _name("device", dv, it.origin, n)
-            setting = c.q(dv.setting, "pressure", item, "setting", key, "static_pressure",
-                          positive=True)
+            setting = c.q(
+                dv.setting, "pressure", item, "setting", key, "static_pressure", positive=True
+            )
             if dv.kind == "prv" and dv.setting is None:
                 c.add(item, "setting", "a pressure-reducing valve needs its outlet setting", key)
             vol = c.q(dv.volume, "volume", item, "volume", key, positive=True)
@@ -342,8 +414,15 @@ def load_building(path: str | Path) -> Building:
         if i in unresolved and side is not None:
             a = Arrestor(a.id, a.node, side, a.size_class, a.gas_volume_m3, a.line)
         elif i not in unresolved and side is not None and side != a.side:
-            c.problems.append(Problem(file, f'arrestor "{a.id}"', "side",
-                                      f"node '{a.node}' is on the {side} side, not {a.side}", a.line))
+            c.problems.append(
+                Problem(
+                    file,
+                    f'arrestor "{a.id}"',
+                    "side",
+                    f"node '{a.node}' is on the {side} side, not {a.side}",
+                    a.line,
+                )
+            )
         fixed_arrestors.append(a)
     _check_unique(c, "pipe", [(p.id, p.line) for p in pipes])
     _check_unique(c, "fixture", [(f.id, f.line) for f in fixtures])
@@ -355,9 +434,17 @@ def load_building(path: str | Path) -> Building:
     node_labels: dict[str, str] = {}  # labels follow the oriented tree (network/build.py)
     profile = b.profile or ("si-default" if units == "si" else "us-default")
     return Building(
-        name=b.name, source=file, unit_system=units, cold_temperature_c=cold_t,
-        hot_temperature_c=hot_t, profile=profile, supplies=tuple(supplies), pipes=tuple(pipes),
-        fixtures=tuple(fixtures), arrestors=tuple(fixed_arrestors), devices=tuple(devices),
+        name=b.name,
+        source=file,
+        unit_system=units,
+        cold_temperature_c=cold_t,
+        hot_temperature_c=hot_t,
+        profile=profile,
+        supplies=tuple(supplies),
+        pipes=tuple(pipes),
+        fixtures=tuple(fixtures),
+        arrestors=tuple(fixed_arrestors),
+        devices=tuple(devices),
         node_labels=node_labels,
     )
 
@@ -371,8 +458,9 @@ def _pipe(c: _Collector, it: Expanded, n: int, d: Any, default_fittings: Any) ->
     length = c.q(p.length, "length", item, "length", key, "length", positive=True)
     rise = c.q(p.rise, "length", item, "rise", key)
     if length is not None and rise is not None and abs(rise) > length * (1 + 1e-9):
-        c.add(item, "rise", f"a rise of {p.rise!r} is more than the pipe's length {p.length!r}",
-              key)
+        c.add(
+            item, "rise", f"a rise of {p.rise!r} is more than the pipe's length {p.length!r}", key
+        )
         ok = False
     material = p.material or d.material
     if material is None:
@@ -384,8 +472,12 @@ def _pipe(c: _Collector, it: Expanded, n: int, d: Any, default_fittings: Any) ->
         c.add(item, "material", _key_message(e), key)
         return None
     if len(str(p.size)) > 20:
-        c.add(item, "size", f"expected a nominal size such as '3/4' or 'DN20', found "
-              f"{_shown(p.size)}", key)
+        c.add(
+            item,
+            "size",
+            f"expected a nominal size such as '3/4' or 'DN20', found {_shown(p.size)}",
+            key,
+        )
         return None
     try:
         size = catalog.get_size(material, catalog.normalize_nominal(p.size))
@@ -400,11 +492,21 @@ def _pipe(c: _Collector, it: Expanded, n: int, d: Any, default_fittings: Any) ->
         c.add(item, "to", f"a pipe cannot run from '{p.from_}' to itself", key)
         return None
     return Pipe(
-        id=p.id, upstream=p.from_, downstream=p.to, length_m=length, nominal_size=size.nominal,
-        material=material, inside_diameter_m=size.inside_diameter_m,
-        outside_diameter_m=size.outside_diameter_m, wall_m=size.wall_m, rise_m=rise,
-        side=p.side or "cold", fittings_length_m=fittings,
-        restraint=p.restraint or d.restraint, label=it.label, line=c.lines.line(key),
+        id=p.id,
+        upstream=p.from_,
+        downstream=p.to,
+        length_m=length,
+        nominal_size=size.nominal,
+        material=material,
+        inside_diameter_m=size.inside_diameter_m,
+        outside_diameter_m=size.outside_diameter_m,
+        wall_m=size.wall_m,
+        rise_m=rise,
+        side=p.side or "cold",
+        fittings_length_m=fittings,
+        restraint=p.restraint or d.restraint,
+        label=it.label,
+        line=c.lines.line(key),
     )
 
 
@@ -412,8 +514,9 @@ def _key_message(e: Exception) -> str:
     return str(e.args[0]) if e.args else str(e)
 
 
-def _fittings(c: _Collector, raw: Any, length: float | None, item: str,
-              key: tuple[Any, ...]) -> float | None:
+def _fittings(
+    c: _Collector, raw: Any, length: float | None, item: str, key: tuple[Any, ...]
+) -> float | None:
     if isinstance(raw, str) and raw.strip().endswith("%"):
         try:
             pct = float(raw.strip()[:-1])
@@ -421,7 +524,12 @@ def _fittings(c: _Collector, raw: Any, length: float | None, item: str,
             c.add(item, "fittings", f"expected a percentage like '25%', found {_shown(raw)}", key)
             return None
         if not math.isfinite(pct) or pct < 0 or pct > 1000:
-            c.add(item, "fittings", f"expected a percentage from 0% to 1000%, found {_shown(raw)}", key)
+            c.add(
+                item,
+                "fittings",
+                f"expected a percentage from 0% to 1000%, found {_shown(raw)}",
+                key,
+            )
             return None
         return (length or 0.0) * pct / 100.0
     return c.q(raw, "length", item, "fittings", key, "length", positive=True, allow_zero=True)
@@ -448,8 +556,7 @@ def _fixture(c: _Collector, it: Expanded, n: int, default_use: str) -> Fixture |
             c.add(item, side, f"kind '{kind.key}' draws {' and '.join(kind.sides)} water only", key)
             return None
     flow = c.q(f.flow, "flow", item, "flow", key, "flow", positive=True)
-    closure = c.q(f.closure_time, "time", item, "closure_time", key, "closure_time",
-                  positive=True)
+    closure = c.q(f.closure_time, "time", item, "closure_time", key, "closure_time", positive=True)
     if (f.flow is not None and flow is None) or (f.closure_time is not None and closure is None):
         return None
     use = f.use or default_use
@@ -457,12 +564,21 @@ def _fixture(c: _Collector, it: Expanded, n: int, default_use: str) -> Fixture |
     valve = f.valve or kind.valve
     quick = kind.quick_closing if f.valve is None else valve in QUICK_VALVES
     return Fixture(
-        id=f.id, kind=kind.key, cold_node=f.cold if f.node is None else f.node,
-        hot_node=f.hot, flow_m3_per_s=flow if flow is not None else kind.flow_m3_per_s,
-        closure_time_s=closure if closure is not None else kind.closure_time_s, valve=valve,
-        quick_closing=quick, use=use,  # type: ignore[arg-type]
-        fixture_units_cold=units[0], fixture_units_hot=units[1], fixture_units_total=units[2],
-        flush_valve=kind.flush_valve, label=it.label, line=c.lines.line(key),
+        id=f.id,
+        kind=kind.key,
+        cold_node=f.cold if f.node is None else f.node,
+        hot_node=f.hot,
+        flow_m3_per_s=flow if flow is not None else kind.flow_m3_per_s,
+        closure_time_s=closure if closure is not None else kind.closure_time_s,
+        valve=valve,
+        quick_closing=quick,
+        use=use,  # type: ignore[arg-type]
+        fixture_units_cold=units[0],
+        fixture_units_hot=units[1],
+        fixture_units_total=units[2],
+        flush_valve=kind.flush_valve,
+        label=it.label,
+        line=c.lines.line(key),
     )
 
 
@@ -492,8 +608,15 @@ def _with_side(c: _Collector, p: Pipe, sides: dict[str, Side], declared: str | N
     if side is None:
         return p
     if declared is not None and declared != side:
-        c.problems.append(Problem(c.file, f'pipe "{p.id}"', "side",
-                                  f"is declared {declared} but its supply is {side}", p.line))
+        c.problems.append(
+            Problem(
+                c.file,
+                f'pipe "{p.id}"',
+                "side",
+                f"is declared {declared} but its supply is {side}",
+                p.line,
+            )
+        )
     return replace(p, side=side)
 
 
@@ -503,11 +626,25 @@ def _fixture_sides(c: _Collector, f: Fixture, sides: dict[str, Side]) -> Fixture
         if side == "hot":
             return replace(f, cold_node=None, hot_node=f.cold_node)
     if f.cold_node is not None and sides.get(f.cold_node) == "hot" and f.hot_node is not None:
-        c.problems.append(Problem(c.file, f'fixture "{f.id}"', "cold",
-                                  f"node '{f.cold_node}' is on the hot side", f.line))
+        c.problems.append(
+            Problem(
+                c.file,
+                f'fixture "{f.id}"',
+                "cold",
+                f"node '{f.cold_node}' is on the hot side",
+                f.line,
+            )
+        )
     if f.hot_node is not None and sides.get(f.hot_node) == "cold":
-        c.problems.append(Problem(c.file, f'fixture "{f.id}"', "hot",
-                                  f"node '{f.hot_node}' is on the cold side", f.line))
+        c.problems.append(
+            Problem(
+                c.file,
+                f'fixture "{f.id}"',
+                "hot",
+                f"node '{f.hot_node}' is on the cold side",
+                f.line,
+            )
+        )
     return f
 
 
@@ -516,8 +653,15 @@ def _check_unique(c: _Collector, kind: str, ids: list[tuple[str, int | None]]) -
     for ident, line in ids:
         if ident in first:
             at = f" (first at line {first[ident]})" if first[ident] else ""
-            c.problems.append(Problem(c.file, f'{kind} "{ident}"', "id" if kind != "supply"
-                                      else "node", f"is used twice{at}", line))
+            c.problems.append(
+                Problem(
+                    c.file,
+                    f'{kind} "{ident}"',
+                    "id" if kind != "supply" else "node",
+                    f"is used twice{at}",
+                    line,
+                )
+            )
         else:
             first[ident] = line
 
@@ -536,6 +680,11 @@ def _fold_repeats(problems: list[Problem]) -> list[Problem]:
         out.append(p)
     for i, n in counts.items():
         p = out[i]
-        out[i] = Problem(p.file, p.item, p.field, f"{p.message} (and {n} more placements of the "
-                         "same template line)", p.line)
+        out[i] = Problem(
+            p.file,
+            p.item,
+            p.field,
+            f"{p.message} (and {n} more placements of the same template line)",
+            p.line,
+        )
     return out

@@ -13,7 +13,9 @@ from pydantic import BaseModel, ConfigDict, Field, StrictFloat, StrictInt, Stric
 
 Quantity = Annotated[
     StrictStr | StrictFloat | StrictInt,
-    Field(description="A number in the building's unit system, or a string with a unit: '25 ft', '60 psi'."),
+    Field(
+        description="A number in the building's unit system, or a string with a unit: '25 ft', '60 psi'."
+    ),
 ]
 Name = Annotated[StrictStr, Field(min_length=1, max_length=200)]
 SideName = Literal["cold", "hot"]
@@ -28,8 +30,9 @@ class BuildingSection(_Strict):
 
     name: Annotated[StrictStr, Field(max_length=200)] = Field(description="The building's name.")
     units: Literal["us", "si"] = Field(
-        "us", description="Unit system of bare numbers and of reports: 'us' (ft, psi, gpm, degF, in3) "
-        "or 'si' (m, kPa, L/s, degC, L)."
+        "us",
+        description="Unit system of bare numbers and of reports: 'us' (ft, psi, gpm, degF, in3) "
+        "or 'si' (m, kPa, L/s, degC, L).",
     )
     cold_water_temperature: Quantity | None = Field(
         None, description="Cold water temperature (default 15 degC / 59 degF)."
@@ -53,7 +56,9 @@ class Defaults(_Strict):
     fittings: Quantity | None = Field(
         None, description="Allowance for fittings: a percentage of length ('25%') or a length."
     )
-    use: Literal["private", "public"] = Field("private", description="Fixture use for fixture units.")
+    use: Literal["private", "public"] = Field(
+        "private", description="Fixture use for fixture units."
+    )
 
 
 class SupplyIn(_Strict):
@@ -63,8 +68,9 @@ class SupplyIn(_Strict):
     kind: Literal["street", "booster", "prv-outlet", "heater-outlet", "tank"] = "street"
     side: SideName = "cold"
     static_pressure: Quantity | None = Field(
-        None, description="Gauge static pressure at the node with no flow (not needed for a heater "
-        "outlet with fed_from)."
+        None,
+        description="Gauge static pressure at the node with no flow (not needed for a heater "
+        "outlet with fed_from).",
     )
     elevation: Quantity = Field(0, description="Elevation of the node.")
     fed_from: Name | None = Field(
@@ -98,11 +104,14 @@ class FixtureIn(_Strict):
     cold: Name | None = Field(None, description="Node of the cold tree its cold valve sits on.")
     hot: Name | None = Field(None, description="Node of the hot tree its hot valve sits on.")
     node: Name | None = Field(
-        None, description="Shorthand for a fixture that draws one side: the side of this node's tree."
+        None,
+        description="Shorthand for a fixture that draws one side: the side of this node's tree.",
     )
     flow: Quantity | None = Field(None, description="Override of the flow through a valve.")
     closure_time: Quantity | None = Field(None, description="Override of the valve closure time.")
-    valve: Literal["solenoid", "self-closing", "lever", "flush-valve", "manual", "sensor"] | None = None
+    valve: (
+        Literal["solenoid", "self-closing", "lever", "flush-valve", "manual", "sensor"] | None
+    ) = None
     use: Literal["private", "public"] | None = None
     label: Annotated[StrictStr, Field(max_length=200)] = ""
 

@@ -36,7 +36,9 @@ _FIELD = re.compile(r"\{([A-Za-z_][A-Za-z0-9_]*)\s*(?:([+-])\s*(\d+))?\}")
 class TemplateProblem(Exception):
     """A problem found while expanding; the loader turns it into a Problem with file and line."""
 
-    def __init__(self, item: str, field: str, message: str, line_key: tuple[Any, ...] | None = None):
+    def __init__(
+        self, item: str, field: str, message: str, line_key: tuple[Any, ...] | None = None
+    ):
         super().__init__(message)
         self.item = item
         self.field = field
@@ -67,8 +69,10 @@ def parse_range(spec: str | list[str | int], where: str) -> list[str | int]:
                 raise TemplateProblem(where, "for", f"range '{spec}' runs backwards")
             if hi - lo + 1 > MAX_RANGE_VALUES:
                 raise TemplateProblem(
-                    where, "for", f"range '{spec}' has {hi - lo + 1} values; at most "
-                    f"{MAX_RANGE_VALUES} are allowed"
+                    where,
+                    "for",
+                    f"range '{spec}' has {hi - lo + 1} values; at most "
+                    f"{MAX_RANGE_VALUES} are allowed",
                 )
             values = list(range(lo, hi + 1))
         else:
@@ -76,8 +80,10 @@ def parse_range(spec: str | list[str | int], where: str) -> list[str | int]:
             if not m:
                 text = spec if len(spec) <= 40 else spec[:35] + "..."
                 raise TemplateProblem(
-                    where, "for", f"expected a range like '2..24' or 'A..J' or a list (whole "
-                    f"numbers of up to 9 digits), found '{text}'"
+                    where,
+                    "for",
+                    f"expected a range like '2..24' or 'A..J' or a list (whole "
+                    f"numbers of up to 9 digits), found '{text}'",
                 )
             a, b = m.group(1), m.group(2)
             letters = string.ascii_uppercase if a.isupper() else string.ascii_lowercase
@@ -87,7 +93,9 @@ def parse_range(spec: str | list[str | int], where: str) -> list[str | int]:
     if not values:
         raise TemplateProblem(where, "for", "a loop variable has no values")
     if len(values) > MAX_RANGE_VALUES:
-        raise TemplateProblem(where, "for", f"a list of {len(values)} values; at most {MAX_RANGE_VALUES}")
+        raise TemplateProblem(
+            where, "for", f"a list of {len(values)} values; at most {MAX_RANGE_VALUES}"
+        )
     return values
 
 
@@ -106,8 +114,9 @@ def fill(text: str, variables: dict[str, str | int], where: str, field: str) -> 
             return str(value)
         if not isinstance(value, int):
             raise TemplateProblem(
-                where, field, f"'{{{name}{op}{amount}}}' needs a whole-number variable; "
-                f"'{name}' is '{value}'"
+                where,
+                field,
+                f"'{{{name}{op}{amount}}}' needs a whole-number variable; '{name}' is '{value}'",
             )
         return str(value + int(amount) if op == "+" else value - int(amount))
 
@@ -115,8 +124,12 @@ def fill(text: str, variables: dict[str, str | int], where: str, field: str) -> 
     if "{" in out or "}" in out:
         raise TemplateProblem(where, field, f"unbalanced or malformed braces in '{text[:60]}'")
     if len(out) > MAX_FILLED_CHARS:
-        raise TemplateProblem(where, field, f"the text grows to {len(out):,} characters once its "
-                              f"variables are filled in; at most {MAX_FILLED_CHARS} are allowed")
+        raise TemplateProblem(
+            where,
+            field,
+            f"the text grows to {len(out):,} characters once its "
+            f"variables are filled in; at most {MAX_FILLED_CHARS} are allowed",
+        )
     return out
 
 
@@ -151,8 +164,9 @@ def _count(
     total = len(t.pipe) + len(t.fixture) + len(t.arrestor) + len(t.device)
     for j, place in enumerate(t.place):
         try:
-            total += _place_count(place, templates, memo, (*stack, name),
-                                  f'place #{j + 1} of template "{name}"')
+            total += _place_count(
+                place, templates, memo, (*stack, name), f'place #{j + 1} of template "{name}"'
+            )
         except TemplateProblem as e:
             if e.line_key is None:
                 e.line_key = ("template", list(templates).index(name), "place", j)
@@ -189,7 +203,9 @@ def expand(doc: BuildingFile) -> list[Expanded]:
     for i, t in enumerate(doc.template):
         if t.name in templates:
             raise TemplateProblem(
-                f'template "{t.name}"', "name", "a template of this name is already defined",
+                f'template "{t.name}"',
+                "name",
+                "a template of this name is already defined",
                 ("template", i),
             )
         templates[t.name] = t
@@ -211,21 +227,32 @@ def expand(doc: BuildingFile) -> list[Expanded]:
             raise
         if total > MAX_EXPANDED_ITEMS:
             raise TemplateProblem(
-                where, "for", f"the file would expand to more than {MAX_EXPANDED_ITEMS:,} items "
+                where,
+                "for",
+                f"the file would expand to more than {MAX_EXPANDED_ITEMS:,} items "
                 "(pipes, fixtures, arrestors, devices); see docs/limits.md",
                 ("place", p_i),
             )
 
-    def place_down(place: PlaceIn, parent: dict[str, str | int], parent_label: str,
-                   where: str, line_key: tuple[Any, ...]) -> None:
+    def place_down(
+        place: PlaceIn,
+        parent: dict[str, str | int],
+        parent_label: str,
+        where: str,
+        line_key: tuple[Any, ...],
+    ) -> None:
         t = templates[place.template]
         ti = t_index[place.template]
         for loop_vars in _combinations(place, where):
             variables: dict[str, str | int] = {**parent, **loop_vars}
             try:
                 for k, v in place.with_.items():
-                    variables[k] = fill(v, variables, where, f"with.{k}") if isinstance(v, str) else v
-                label = fill(place.label, variables, where, "label") if place.label else parent_label
+                    variables[k] = (
+                        fill(v, variables, where, f"with.{k}") if isinstance(v, str) else v
+                    )
+                label = (
+                    fill(place.label, variables, where, "label") if place.label else parent_label
+                )
             except TemplateProblem as e:
                 e.line_key = e.line_key or line_key
                 raise
@@ -235,7 +262,7 @@ def expand(doc: BuildingFile) -> list[Expanded]:
                 for i, item in enumerate(getattr(t, kind)):
                     key = ("template", ti, kind, i)
                     try:
-                        filled = _fill_model(item, variables, f'{kind} #{i + 1} of {origin}')
+                        filled = _fill_model(item, variables, f"{kind} #{i + 1} of {origin}")
                     except TemplateProblem as e:
                         e.line_key = key
                         raise
@@ -243,8 +270,13 @@ def expand(doc: BuildingFile) -> list[Expanded]:
                     full = ", ".join(x for x in (label, own) if x)
                     out.append(Expanded(kind, filled, full, origin, key))
             for j, child in enumerate(t.place):
-                place_down(child, variables, label, f'place #{j + 1} of template "{t.name}"',
-                           ("template", ti, "place", j))
+                place_down(
+                    child,
+                    variables,
+                    label,
+                    f'place #{j + 1} of template "{t.name}"',
+                    ("template", ti, "place", j),
+                )
 
     for p_i, place in enumerate(doc.place):
         place_down(place, {}, "", f"place #{p_i + 1}", ("place", p_i))

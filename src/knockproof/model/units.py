@@ -132,8 +132,10 @@ def parse_quantity(value: object, kind: Kind, unit_system: str = "us") -> float:
     if not math.isfinite(number):
         raise QuantityError(f"expected a finite {kind}, found {shown(value)}")
     if len(unit) > MAX_UNIT_CHARS:
-        raise QuantityError(f"expected a {kind} such as {_EXAMPLES[kind]}, found {shown(value)} "
-                            "(the unit is too long to be one)")
+        raise QuantityError(
+            f"expected a {kind} such as {_EXAMPLES[kind]}, found {shown(value)} "
+            "(the unit is too long to be one)"
+        )
     ureg = registry()
     try:
         q = ureg.Quantity(number, unit)
@@ -142,9 +144,19 @@ def parse_quantity(value: object, kind: Kind, unit_system: str = "us") -> float:
         raise QuantityError(
             f"expected a {kind} such as {_EXAMPLES[kind]}, found {shown(value)} ({_describe(unit)})"
         ) from None
-    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            ValueError, TypeError, SyntaxError, AssertionError, RecursionError, OverflowError,
-            ZeroDivisionError, KeyError):
+    except (
+        pint.errors.UndefinedUnitError,
+        pint.errors.DefinitionSyntaxError,
+        AttributeError,
+        ValueError,
+        TypeError,
+        SyntaxError,
+        AssertionError,
+        RecursionError,
+        OverflowError,
+        ZeroDivisionError,
+        KeyError,
+    ):
         raise QuantityError(
             f"expected a {kind} such as {_EXAMPLES[kind]}, found {shown(value)} (unknown unit "
             f"{shown(unit, 30)})"
@@ -196,12 +208,24 @@ DISPLAY_UNITS: dict[str, dict[str, tuple[str, str]]] = {
 
 # Plain conversion factors from SI to the display unit (avoids pint in hot paths of reports).
 _FROM_SI = {
-    "m": 1.0, "ft": 1 / 0.3048, "in": 1 / 0.0254, "mm": 1000.0,
-    "Pa": 1.0, "kPa": 1e-3, "psi": 1 / 6894.757293168361, "bar": 1e-5,
-    "m**3/s": 1.0, "gpm": 1 / 6.30901964e-5, "L/s": 1000.0,
-    "s": 1.0, "ms": 1000.0,
-    "m**3": 1.0, "in3": 1 / 1.6387064e-5, "L": 1000.0,
-    "m/s": 1.0, "ft/s": 1 / 0.3048,
+    "m": 1.0,
+    "ft": 1 / 0.3048,
+    "in": 1 / 0.0254,
+    "mm": 1000.0,
+    "Pa": 1.0,
+    "kPa": 1e-3,
+    "psi": 1 / 6894.757293168361,
+    "bar": 1e-5,
+    "m**3/s": 1.0,
+    "gpm": 1 / 6.30901964e-5,
+    "L/s": 1000.0,
+    "s": 1.0,
+    "ms": 1000.0,
+    "m**3": 1.0,
+    "in3": 1 / 1.6387064e-5,
+    "L": 1000.0,
+    "m/s": 1.0,
+    "ft/s": 1 / 0.3048,
 }
 
 

@@ -45,10 +45,19 @@ def render_estimate(console: Console, r: RunEstimate, u: str) -> None:
         ("velocity", fmt(r.velocity_m_per_s, "velocity", u, 2)),
         ("wave speed", fmt(r.wave_speed_m_per_s, "wave_speed", u, 0)),
         ("critical time 2L/a", f"{r.critical_time_s * 1000:.1f} ms"),
-        ("closure", f"{r.closure} ({'at or under' if r.closure == 'rapid' else 'longer than'} 2L/a)"),
-        ("surge", fmt(r.surge_pa, "pressure", u, 0)
-         + ("" if r.closure == "rapid" else
-            f"  (Joukowsky limit {fmt(r.joukowsky_surge_pa, 'pressure', u, 0)})")),
+        (
+            "closure",
+            f"{r.closure} ({'at or under' if r.closure == 'rapid' else 'longer than'} 2L/a)",
+        ),
+        (
+            "surge",
+            fmt(r.surge_pa, "pressure", u, 0)
+            + (
+                ""
+                if r.closure == "rapid"
+                else f"  (Joukowsky limit {fmt(r.joukowsky_surge_pa, 'pressure', u, 0)})"
+            ),
+        ),
         ("peak pressure", fmt(r.peak_pressure_pa, "pressure", u, 0)),
     ]
     width = max(len(k) for k, _ in rows)

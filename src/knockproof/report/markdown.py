@@ -11,21 +11,28 @@ def _cell(text: str) -> str:
     return text.replace("|", "\\|").replace("\n", " ")
 
 
-def analysis_markdown(a: Analysis, extra_sections: list[str] | None = None,
-                      header: bool = True) -> str:
+def analysis_markdown(
+    a: Analysis, extra_sections: list[str] | None = None, header: bool = True
+) -> str:
     """Markdown of the analysis; ``header=False`` leaves out the title and the caution (when it
     follows a section that already carries them)."""
     u = a.unit_system
     pu = unit_label("pressure", u)
-    lines = [f"# Water-hammer check: {_cell(a.building_name)}", "", f"> {CAUTION}", ""] if header \
+    lines = (
+        [f"# Water-hammer check: {_cell(a.building_name)}", "", f"> {CAUTION}", ""]
+        if header
         else []
+    )
     lines += extra_sections or []
     sim = any(e.simulated_peak_pressure_pa is not None for e in a.events)
-    lines += ["## Closure events", "",
-              f"| valve | where | velocity {unit_label('velocity', u)} | closure ms | 2L/a ms "
-              f"| closure | surge {pu} | peak {pu} |"
-              + (f" simulated {pu} | cavity | with arrestors {pu} |" if sim else ""),
-              "|---|---|---:|---:|---:|---|---:|---:|" + ("---:|---|---:|" if sim else "")]
+    lines += [
+        "## Closure events",
+        "",
+        f"| valve | where | velocity {unit_label('velocity', u)} | closure ms | 2L/a ms "
+        f"| closure | surge {pu} | peak {pu} |"
+        + (f" simulated {pu} | cavity | with arrestors {pu} |" if sim else ""),
+        "|---|---|---:|---:|---:|---|---:|---:|" + ("---:|---|---:|" if sim else ""),
+    ]
 
     def p(x: float | None) -> str:
         return "" if x is None else f"{to_display(x, 'pressure', u):.0f}"
@@ -37,8 +44,12 @@ def analysis_markdown(a: Analysis, extra_sections: list[str] | None = None,
             f"{e.critical_time_s * 1000:.1f} | {e.closure} | "
             f"{to_display(e.surge_pa, 'pressure', u):.0f} | "
             f"{to_display(e.peak_pressure_pa, 'pressure', u):.0f} |"
-            + (f" {p(e.simulated_peak_pressure_pa)} | {'yes' if e.cavity else 'no'} | "
-               f"{p(e.simulated_peak_with_arrestors_pa)} |" if sim else "")
+            + (
+                f" {p(e.simulated_peak_pressure_pa)} | {'yes' if e.cavity else 'no'} | "
+                f"{p(e.simulated_peak_with_arrestors_pa)} |"
+                if sim
+                else ""
+            )
         )
     lines += ["", "## Assumptions", ""] + [f"- {x}" for x in a.assumptions] + [""]
     return "\n".join(lines)

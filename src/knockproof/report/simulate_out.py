@@ -46,33 +46,51 @@ def simulation_json(event: Any, bare: Any, protected: Any | None) -> str:
     return json.dumps(data, indent=2, allow_nan=False) + "\n"
 
 
-def render_simulation(console: Console, event: Any, bare: Any, protected: Any | None, u: str,
-                      plot: Path | None) -> None:
-    console.print(f"[bold]{escape(event.fixture)} ({event.side})[/] at node {escape(event.node)}"
-                  + (f" — {escape(event.label)}" if event.label else ""))
-    console.print(f"  closes in {event.closure_time_s * 1000:.0f} ms; 2L/a = "
-                  f"{event.critical_time_s * 1000:.1f} ms ({event.closure}); static "
-                  f"{fmt(event.static_pressure_pa, 'pressure', u, 0)}")
+def render_simulation(
+    console: Console, event: Any, bare: Any, protected: Any | None, u: str, plot: Path | None
+) -> None:
+    console.print(
+        f"[bold]{escape(event.fixture)} ({event.side})[/] at node {escape(event.node)}"
+        + (f" — {escape(event.label)}" if event.label else "")
+    )
+    console.print(
+        f"  closes in {event.closure_time_s * 1000:.0f} ms; 2L/a = "
+        f"{event.critical_time_s * 1000:.1f} ms ({event.closure}); static "
+        f"{fmt(event.static_pressure_pa, 'pressure', u, 0)}"
+    )
     console.print(f"  closed-form peak       {fmt(event.peak_pressure_pa, 'pressure', u, 0)}")
-    console.print(f"  simulated peak         {fmt(bare.peak_pressure_pa, 'pressure', u, 0)}"
-                  f"  (first cycle {fmt(bare.first_peak_pressure_pa, 'pressure', u, 0)})")
+    console.print(
+        f"  simulated peak         {fmt(bare.peak_pressure_pa, 'pressure', u, 0)}"
+        f"  (first cycle {fmt(bare.first_peak_pressure_pa, 'pressure', u, 0)})"
+    )
     if bare.cavity:
-        console.print(f"  vapour cavity: yes; lowest pressure {fmt(bare.min_pressure_pa, 'pressure', u, 1)}"
-                      + (f"; collapse peak {fmt(bare.collapse_peak_pressure_pa, 'pressure', u, 0)}"
-                         " (grid-dependent: the first cycle's peak is the reliable figure)"
-                         if bare.collapse_peak_pressure_pa is not None else ""))
+        console.print(
+            f"  vapour cavity: yes; lowest pressure {fmt(bare.min_pressure_pa, 'pressure', u, 1)}"
+            + (
+                f"; collapse peak {fmt(bare.collapse_peak_pressure_pa, 'pressure', u, 0)}"
+                " (grid-dependent: the first cycle's peak is the reliable figure)"
+                if bare.collapse_peak_pressure_pa is not None
+                else ""
+            )
+        )
     else:
-        console.print(f"  vapour cavity: no; lowest pressure on the path "
-                      f"{fmt(bare.min_pressure_pa, 'pressure', u, 0)}")
+        console.print(
+            f"  vapour cavity: no; lowest pressure on the path "
+            f"{fmt(bare.min_pressure_pa, 'pressure', u, 0)}"
+        )
     if protected is not None:
         where = ", ".join(f"{n} ({fmt(v, 'volume', u, 2)})" for n, v in protected.arrestors)
-        console.print(f"  with arrestors at {escape(where)}: peak "
-                      f"{fmt(protected.peak_pressure_pa, 'pressure', u, 0)}")
+        console.print(
+            f"  with arrestors at {escape(where)}: peak "
+            f"{fmt(protected.peak_pressure_pa, 'pressure', u, 0)}"
+        )
     else:
         console.print("  no arrestor is scheduled for this valve")
-    console.print(f"  simulated {bare.duration_s * 1000:.0f} ms at a {bare.time_step_s * 1e6:.0f} µs "
-                  f"step over {bare.zone_pipes} pipes near the valve; largest wave-speed "
-                  f"adjustment {bare.largest_wave_speed_adjustment:.1%}")
+    console.print(
+        f"  simulated {bare.duration_s * 1000:.0f} ms at a {bare.time_step_s * 1e6:.0f} µs "
+        f"step over {bare.zone_pipes} pipes near the valve; largest wave-speed "
+        f"adjustment {bare.largest_wave_speed_adjustment:.1%}"
+    )
     if plot is not None:
         console.print(f"  plot written to {escape(str(plot))}")
     console.print(CAUTION)

@@ -20,11 +20,17 @@ def render_summary(console: Console, s: TreeSummary, units: str) -> None:
     for col in ("node", "kind", "side", "static pressure"):
         t.add_column(col)
     for node, kind, side, p in s.supplies:
-        t.add_row(node, kind, side, fmt(p, "pressure", units, 0) if p is not None else "from cold side")
+        t.add_row(
+            node, kind, side, fmt(p, "pressure", units, 0) if p is not None else "from cold side"
+        )
     console.print(t)
     t = Table(title="Pipes by material and size", title_justify="left", show_edge=False)
-    for col, just in (("material", "left"), ("size", "right"), ("pipes", "right"),
-                      ("length", "right")):
+    for col, just in (
+        ("material", "left"),
+        ("size", "right"),
+        ("pipes", "right"),
+        ("length", "right"),
+    ):
         t.add_column(col, justify=just)  # type: ignore[arg-type]
     for m, size, n, length in s.pipes_by_material_size:
         t.add_row(m, size, str(n), fmt(length, "length", units, 0))

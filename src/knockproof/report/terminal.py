@@ -18,7 +18,9 @@ def render_events(console: Console, a: Analysis, limit: int = 12) -> None:
     p_unit = unit_label("pressure", u)
     t = Table(
         title=f"Worst closure events ({len(shown)} of {len(events)}, by peak pressure)",
-        title_justify="left", show_edge=False, pad_edge=False,
+        title_justify="left",
+        show_edge=False,
+        pad_edge=False,
     )
     t.add_column("valve", overflow="fold")
     t.add_column("where", overflow="fold", max_width=28)
@@ -43,18 +45,25 @@ def render_events(console: Console, a: Analysis, limit: int = 12) -> None:
             *([] if simulated else [f"{to_display(e.surge_pa, 'pressure', u):.0f}"]),
             peak_text,
             *(
-                [_sim(e.simulated_peak_pressure_pa, u) + ("*" if e.cavity else ""),
-                 _sim(e.simulated_peak_with_arrestors_pa, u)]
-                if simulated else []
+                [
+                    _sim(e.simulated_peak_pressure_pa, u) + ("*" if e.cavity else ""),
+                    _sim(e.simulated_peak_with_arrestors_pa, u),
+                ]
+                if simulated
+                else []
             ),
         )
     console.print(t)
-    console.print("R = rapid closure (closure time at or under 2L/a): full Joukowsky surge; peak = "
-                  "closed-form estimate (static + surge).")
+    console.print(
+        "R = rapid closure (closure time at or under 2L/a): full Joukowsky surge; peak = "
+        "closed-form estimate (static + surge)."
+    )
     if simulated:
-        console.print("sim = simulated peak (method of characteristics, vapour cavities); "
-                      "* = a vapour cavity formed (only the first cycle's peak is reliable); "
-                      "w/ arr. = with the scheduled arrestors in place.")
+        console.print(
+            "sim = simulated peak (method of characteristics, vapour cavities); "
+            "* = a vapour cavity formed (only the first cycle's peak is reliable); "
+            "w/ arr. = with the scheduled arrestors in place."
+        )
 
 
 def _sim(value: float | None, u: str) -> str:
@@ -65,18 +74,30 @@ def render_pipes(console: Console, a: Analysis, limit: int = 8) -> None:
     """The fastest pipes at design flow, with wave speeds."""
     u = a.unit_system
     pipes = sorted(a.pipes, key=lambda p: (-p.velocity_m_per_s, p.id))[:limit]
-    t = Table(title=f"Fastest pipes at design flow ({len(pipes)} of {len(a.pipes)})",
-              title_justify="left", show_edge=False, pad_edge=False)
-    for col, just in (("pipe", "left"), ("material size", "left"), ("side", "left"),
-                      (f"flow {unit_label('flow', u)}", "right"),
-                      (f"V {unit_label('velocity', u)}", "right"),
-                      (f"a {unit_label('wave_speed', u)}", "right")):
+    t = Table(
+        title=f"Fastest pipes at design flow ({len(pipes)} of {len(a.pipes)})",
+        title_justify="left",
+        show_edge=False,
+        pad_edge=False,
+    )
+    for col, just in (
+        ("pipe", "left"),
+        ("material size", "left"),
+        ("side", "left"),
+        (f"flow {unit_label('flow', u)}", "right"),
+        (f"V {unit_label('velocity', u)}", "right"),
+        (f"a {unit_label('wave_speed', u)}", "right"),
+    ):
         t.add_column(col, justify=just)  # type: ignore[arg-type]
     for p in pipes:
-        t.add_row(escape(p.id), f"{p.material} {p.nominal_size}", p.side,
-                  f"{to_display(p.design_flow_m3_per_s, 'flow', u):.1f}",
-                  f"{to_display(p.velocity_m_per_s, 'velocity', u):.1f}",
-                  f"{to_display(p.wave_speed_m_per_s, 'wave_speed', u):.0f}")
+        t.add_row(
+            escape(p.id),
+            f"{p.material} {p.nominal_size}",
+            p.side,
+            f"{to_display(p.design_flow_m3_per_s, 'flow', u):.1f}",
+            f"{to_display(p.velocity_m_per_s, 'velocity', u):.1f}",
+            f"{to_display(p.wave_speed_m_per_s, 'wave_speed', u):.0f}",
+        )
     console.print(t)
 
 
@@ -92,8 +113,10 @@ def render_headline(console: Console, a: Analysis) -> None:
     console.print(f"[bold]{escape(a.building_name)}[/]  ({escape(a.source)})")
     line = f"{len(a.pipes)} pipes, {len(a.events)} closure events"
     if worst is not None:
-        line += (f"; highest estimated peak {fmt(worst.peak_pressure_pa, 'pressure', u, 0)} at "
-                 f"{escape(worst.fixture)}:{worst.side}")
+        line += (
+            f"; highest estimated peak {fmt(worst.peak_pressure_pa, 'pressure', u, 0)} at "
+            f"{escape(worst.fixture)}:{worst.side}"
+        )
     console.print(line)
 
 
@@ -101,9 +124,15 @@ def render_arrestor_checks(console: Console, checks: list, u: str, limit: int = 
     """Arrestor gas volumes checked by simulation (only those that needed more than sized)."""
     if not checks:
         return
-    raised = [c for c in checks if c.verified_gas_volume_m3 is None or (
-        c.energy_method_gas_volume_m3 is not None
-        and c.verified_gas_volume_m3 > c.energy_method_gas_volume_m3 * 1.0001)]
+    raised = [
+        c
+        for c in checks
+        if c.verified_gas_volume_m3 is None
+        or (
+            c.energy_method_gas_volume_m3 is not None
+            and c.verified_gas_volume_m3 > c.energy_method_gas_volume_m3 * 1.0001
+        )
+    ]
     console.print(
         f"Arrestor sizing checked by simulation: {len(checks)} arrestors, "
         f"{len(checks) - len(raised)} hold the peak under {fmt(checks[0].limit_pa, 'pressure', u, 0)} "
@@ -115,8 +144,13 @@ def render_arrestor_checks(console: Console, checks: list, u: str, limit: int = 
     for col in ("arrestor", "worst event", "sized", "needed (simulated)", "peak"):
         t.add_column(col)
     for c in raised[:limit]:
-        t.add_row(escape(c.arrestor_id), escape(c.event_id),
-                  fmt(c.energy_method_gas_volume_m3, "volume", u, 2),
-                  fmt(c.verified_gas_volume_m3, "volume", u, 2) if c.verified_gas_volume_m3
-                  else "none found", fmt(c.simulated_peak_pa, "pressure", u, 0))
+        t.add_row(
+            escape(c.arrestor_id),
+            escape(c.event_id),
+            fmt(c.energy_method_gas_volume_m3, "volume", u, 2),
+            fmt(c.verified_gas_volume_m3, "volume", u, 2)
+            if c.verified_gas_volume_m3
+            else "none found",
+            fmt(c.simulated_peak_pa, "pressure", u, 0),
+        )
     console.print(t)

@@ -125,14 +125,19 @@ def _cache(tree: nx.DiGraph, analysis: Analysis) -> _Cache:
         tt = p.length_m / pipes[p.id].wave_speed_m_per_s
         adjacency[u].append((v, (u, v), tt))
         adjacency[v].append((u, (u, v), tt))
-    c = _Cache({f.id: f for f in tree.graph["building"].fixtures}, pipes,
-               {n.id: n for n in analysis.nodes}, adjacency)
+    c = _Cache(
+        {f.id: f for f in tree.graph["building"].fixtures},
+        pipes,
+        {n.id: n for n in analysis.nodes},
+        adjacency,
+    )
     tree.graph["_transient_cache"] = (key, c, analysis)
     return c
 
 
-def _closing_members(tree: nx.DiGraph, event: EventResult,
-                     cache: _Cache) -> list[tuple[str, float, float, str]]:
+def _closing_members(
+    tree: nx.DiGraph, event: EventResult, cache: _Cache
+) -> list[tuple[str, float, float, str]]:
     """(node, flow, closure time, law) of each valve that closes in the event."""
     by_id = cache.fixtures
     out = []
@@ -140,7 +145,9 @@ def _closing_members(tree: nx.DiGraph, event: EventResult,
         f = by_id[fid]
         node = f.node(event.side)  # type: ignore[arg-type]
         assert node is not None
-        out.append((node, f.flow_m3_per_s, f.closure_time_s, VALVE_LAWS.get(f.valve, "linear-area")))
+        out.append(
+            (node, f.flow_m3_per_s, f.closure_time_s, VALVE_LAWS.get(f.valve, "linear-area"))
+        )
     return out
 
 
@@ -233,15 +240,33 @@ def build_event_network(
         r = pipe_res[p.id]
         q = flow.get((u, v), 0.0)
         f = _event_friction(p, q, pipe_res, rho, side, building) if q > 0 else r.friction_factor
-        specs.append(PipeSpec(p.id, u, v, p.length_m + p.fittings_length_m * 0.0, p.inside_diameter_m,
-                              r.wave_speed_m_per_s, f))
+        specs.append(
+            PipeSpec(
+                p.id,
+                u,
+                v,
+                p.length_m + p.fittings_length_m * 0.0,
+                p.inside_diameter_m,
+                r.wave_speed_m_per_s,
+                f,
+            )
+        )
     elevations = {n: tree.nodes[n]["elevation_m"] for n in nodes}
     outlets = [OutletSpec(node, q, tc, law) for node, q, tc, law in members]
     cushion_specs = [CushionSpec(node, vol) for node, vol in cushions if node in nodes]
     order = sorted(nodes, key=lambda n: (dist.get(n, math.inf), n))
     vapour = _vapour(analysis, side)
-    net = tree_network(specs, top, h_top, elevations, outlets, cushion_specs, density_kg_m3=rho,
-                       vapour_pressure_abs_pa=vapour, node_order=order)
+    net = tree_network(
+        specs,
+        top,
+        h_top,
+        elevations,
+        outlets,
+        cushion_specs,
+        density_kg_m3=rho,
+        vapour_pressure_abs_pa=vapour,
+        node_order=order,
+    )
     index = {name: i for i, name in enumerate(net.node_names)}
     # Hold every cut node (one with pipes outside the zone) at its steady head.
     cuts = []
@@ -285,8 +310,11 @@ def _loss(pipe, q, pipe_res, rho, side, building) -> float:
 
 def event_time_step_s(event: EventResult) -> float:
     """Target time step [s] for an event (see the module notes)."""
-    return min(MAX_TIME_STEP_S, event.closure_time_s / STEPS_PER_CLOSURE,
-               max(event.critical_time_s, 1e-4) / STEPS_PER_CLOSURE)
+    return min(
+        MAX_TIME_STEP_S,
+        event.closure_time_s / STEPS_PER_CLOSURE,
+        max(event.critical_time_s, 1e-4) / STEPS_PER_CLOSURE,
+    )
 
 
 def simulate_event(
@@ -306,25 +334,32 @@ def simulate_event(
     """
     from knockproof.transient.solver import simulate
 
-    net, index, duration = build_event_network(tree, analysis, event, cushions,
-                                               zone_travel_s=zone_travel_s)
+    net, index, duration = build_event_network(
+        tree, analysis, event, cushions, zone_travel_s=zone_travel_s
+    )
     valve = index[event.node]
     if time_step_s is None:
         time_step_s = event_time_step_s(event)
     res = simulate(net, duration, record_nodes=[valve] if record else [], time_step_s=time_step_s)
     on_path = [index[p.node] for p in event.path if p.node in index]
-    path_peaks = {p.node: float(res.node_max_pressure_pa[index[p.node]]) for p in event.path
-                  if p.node in index}
+    path_peaks = {
+        p.node: float(res.node_max_pressure_pa[index[p.node]])
+        for p in event.path
+        if p.node in index
+    }
     collapse = float(res.node_collapse_peak_pressure_pa[valve])
     return EventSimulation(
-        event_id=event.id, duration_s=float(res.duration_s), time_step_s=float(res.time_step_s),
+        event_id=event.id,
+        duration_s=float(res.duration_s),
+        time_step_s=float(res.time_step_s),
         zone_pipes=len(net.pipe_names),
         largest_wave_speed_adjustment=float(res.largest_wave_speed_adjustment),
         peak_pressure_pa=float(res.node_max_pressure_pa[valve]),
         first_peak_pressure_pa=float(res.node_first_peak_pressure_pa[valve]),
         collapse_peak_pressure_pa=None if math.isnan(collapse) else collapse,
         min_pressure_pa=float(np.min(res.node_min_pressure_pa[on_path])),
-        cavity=bool(np.any(res.node_cavity)), path_peak_pressure_pa=path_peaks,
+        cavity=bool(np.any(res.node_cavity)),
+        path_peak_pressure_pa=path_peaks,
         times_s=np.asarray(res.times_s) if record else np.zeros(0),
         valve_pressure_pa=np.asarray(res.traces_pressure_pa[valve]) if record else np.zeros(0),
         arrestors=tuple(cushions),

@@ -120,16 +120,20 @@ def simulate_all(
             with_jobs.append((e.id, c))
     results = run_jobs(tree, analysis, jobs + with_jobs, workers, progress)
     bare = {j[0]: r for j, r in zip(jobs, results[: len(jobs)], strict=True)}
-    protected = {j[0]: r for j, r in zip(with_jobs, results[len(jobs):], strict=True)}
+    protected = {j[0]: r for j, r in zip(with_jobs, results[len(jobs) :], strict=True)}
     events = []
     for e in analysis.events:
         b = bare[e.id]
         p = protected.get(e.id)
-        events.append(replace(
-            e, simulated_peak_pressure_pa=b.peak_pressure_pa,
-            simulated_min_pressure_pa=b.min_pressure_pa, cavity=b.cavity,
-            simulated_peak_with_arrestors_pa=p.peak_pressure_pa if p else None,
-        ))
+        events.append(
+            replace(
+                e,
+                simulated_peak_pressure_pa=b.peak_pressure_pa,
+                simulated_min_pressure_pa=b.min_pressure_pa,
+                cavity=b.cavity,
+                simulated_peak_with_arrestors_pa=p.peak_pressure_pa if p else None,
+            )
+        )
     return replace(analysis, events=tuple(events)), bare, protected
 
 
@@ -152,8 +156,9 @@ def verify_arrestors(
         events = [e for e in analysis.events if cushions_for(e, [a])]
         if not events:
             continue
-        worst = max(events, key=lambda e: (e.simulated_peak_with_arrestors_pa or e.peak_pressure_pa,
-                                           e.id))
+        worst = max(
+            events, key=lambda e: (e.simulated_peak_with_arrestors_pa or e.peak_pressure_pa, e.id)
+        )
         vol = getattr(a, "gas_volume_m3", None)
         with_peak = worst.simulated_peak_with_arrestors_pa
         if vol and with_peak is not None and with_peak <= limit_pa:
@@ -175,13 +180,20 @@ def _bisect(tree, analysis, arrestor, event, start, limit_pa) -> ArrestorCheck:
         p_hi = peak(hi)
         doublings += 1
     if p_hi > limit_pa:
-        return ArrestorCheck(arrestor.id, event.id, getattr(arrestor, "gas_volume_m3", None), None,
-                             p_hi, limit_pa)
+        return ArrestorCheck(
+            arrestor.id, event.id, getattr(arrestor, "gas_volume_m3", None), None, p_hi, limit_pa
+        )
     if lo == 0.0:
         lo = hi / 16.0
         if peak(lo) <= limit_pa:
-            return ArrestorCheck(arrestor.id, event.id, getattr(arrestor, "gas_volume_m3", None),
-                                 lo, peak(lo), limit_pa)
+            return ArrestorCheck(
+                arrestor.id,
+                event.id,
+                getattr(arrestor, "gas_volume_m3", None),
+                lo,
+                peak(lo),
+                limit_pa,
+            )
     while (hi - lo) / hi > VOLUME_TOLERANCE:
         mid = math.sqrt(lo * hi)
         p = peak(mid)
@@ -189,8 +201,9 @@ def _bisect(tree, analysis, arrestor, event, start, limit_pa) -> ArrestorCheck:
             hi, p_hi = mid, p
         else:
             lo = mid
-    return ArrestorCheck(arrestor.id, event.id, getattr(arrestor, "gas_volume_m3", None), hi, p_hi,
-                         limit_pa)
+    return ArrestorCheck(
+        arrestor.id, event.id, getattr(arrestor, "gas_volume_m3", None), hi, p_hi, limit_pa
+    )
 
 
 @dataclass(frozen=True)
@@ -202,8 +215,12 @@ class Traces:
     valve_pressure_with_arrestors_pa: object | None
 
 
-def traces_for(tree: nx.DiGraph, analysis: Analysis, events: Sequence[EventResult],
-               arrestors: Sequence[object] = ()) -> dict[str, Traces]:
+def traces_for(
+    tree: nx.DiGraph,
+    analysis: Analysis,
+    events: Sequence[EventResult],
+    arrestors: Sequence[object] = (),
+) -> dict[str, Traces]:
     """Re-run a few events keeping their pressure histories (for plots)."""
     import numpy as np
 
