@@ -251,3 +251,48 @@ hot = "Kh"
     assert a.pipe("H1").fixture_units == pytest.approx(1.0)
     # Heater outlet static pressure comes from its feed node (same elevation): 400 kPa.
     assert a.node("WH").static_pressure_pa == pytest.approx(400e3, rel=1e-9)
+
+
+def test_continuous_load_adds_its_flow(write):
+    # IPC Appendix E (from memory): continuous demands are added, in gpm, to the fixture-unit demand.
+    # Here one lavatory (private: 0.7 WSFU total, 0.5 cold) gives 3 gpm per unit up to 1 WSFU
+    # (Table E103.3(3) first row 1 -> 3.0 gpm, proportional below it), and a hose bibb left running
+    # as a continuous load adds its rated 5 gpm (IPC Table 604.3: hose bibb 5 gpm).
+    text = BASE + """
+[[pipe]]
+id = "M"
+from = "S"
+to = "J"
+length = 10
+size = "1"
+
+[[pipe]]
+id = "A"
+from = "J"
+to = "lav"
+length = 3
+size = "1/2"
+
+[[pipe]]
+id = "B"
+from = "J"
+to = "hb"
+length = 3
+size = "3/4"
+
+[[fixture]]
+id = "lav"
+kind = "lavatory"
+cold = "lav"
+
+[[fixture]]
+id = "hb"
+kind = "hose-bibb"
+cold = "hb"
+continuous = true
+"""
+    a = analyze(write(text))
+    lav_only = max(0.5 * 3.0 * GPM, 0.8 * GPM)  # never less than the lavatory's own 0.8 gpm
+    assert a.pipe("M").design_flow_m3_per_s == pytest.approx(lav_only + 5 * GPM, rel=1e-6)
+    assert a.pipe("B").design_flow_m3_per_s == pytest.approx(5 * GPM, rel=1e-6)
+    assert a.pipe("M").fixture_units == pytest.approx(0.5)

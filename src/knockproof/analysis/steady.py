@@ -2,7 +2,8 @@
 
 Design flow in each pipe comes from the water-supply fixture units downstream of it (IPC Appendix E,
 Table E103.3(3)), flush-valve curve where a flush valve is downstream, never less than the largest
-single fixture flow downstream (one fixture open alone must be served). Cold pipes upstream of a water
+single fixture flow downstream (one fixture open alone must be served); continuous loads (fixtures
+marked ``continuous``) add their flow on top, as the model code adds continuous demand in gpm. Cold pipes upstream of a water
 heater also carry its hot demand; a fixture drawing both sides through the same pipe counts with its
 *total* fixture units (Table E103.3(2)), as the model code's method does.
 """
@@ -58,9 +59,11 @@ def pipe_wave_speed(p: Pipe, w: Water) -> float:
 
 def _demand_units(
     tree: nx.DiGraph, building: Building
-) -> tuple[dict[str, float], dict[str, bool], dict[str, float]]:
-    """Per pipe id: fixture units, whether a flush valve is downstream, largest single flow."""
+) -> tuple[dict[str, float], dict[str, bool], dict[str, float], dict[str, float]]:
+    """Per pipe id: fixture units, whether a flush valve is downstream, largest single flow, and
+    the continuous flow (fixtures marked ``continuous`` add their flow instead of their units)."""
     units: dict[str, float] = {}
+    continuous: dict[str, float] = {}
     flush: dict[str, bool] = {}
     largest: dict[str, float] = {}
     heater_feed: dict[str, str] = {}  # hot root -> cold node feeding it
@@ -89,6 +92,17 @@ def _demand_units(
         largest[pid] = max(largest.get(pid, 0.0), f.flow_m3_per_s)
 
     for f in building.fixtures:
+        if f.continuous:
+            touched: set[str] = set()
+            for node in (f.cold_node, f.hot_node):
+                if node is not None:
+                    touched.update(path(node))
+                    root = tree.nodes[node]["root"]
+                    if root in heater_feed:
+                        touched.update(path(heater_feed[root]))
+            for pid in touched:
+                continuous[pid] = continuous.get(pid, 0.0) + f.flow_m3_per_s
+            continue
         cold_path = set(path(f.cold_node)) if f.cold_node is not None else set()
         feed_path: set[str] = set()
         if f.hot_node is not None:
@@ -101,14 +115,14 @@ def _demand_units(
             add(pid, f.fixture_units_total if pid in feed_path else f.fixture_units_cold, f)
         for pid in feed_path - cold_path:
             add(pid, f.fixture_units_hot, f)
-    return units, flush, largest
+    return units, flush, largest, continuous
 
 
 def steady_flow(tree: nx.DiGraph) -> tuple[tuple[PipeResult, ...], tuple[NodeResult, ...]]:
     """Design flow, velocity, friction loss and wave speed of every pipe; pressures at every node."""
     building: Building = tree.graph["building"]
     waters = {side: water_at(building.temperature_c(side)) for side in ("cold", "hot")}
-    units, flush, largest = _demand_units(tree, building)
+    units, flush, largest, continuous = _demand_units(tree, building)
     pipe_results: dict[str, PipeResult] = {}
     for u, v, p in tree.edges(data="pipe"):
         side = tree.nodes[v]["side"]
@@ -120,7 +134,7 @@ def steady_flow(tree: nx.DiGraph) -> tuple[tuple[PipeResult, ...], tuple[NodeRes
             max(demand.design_flow_m3_per_s(fu, fv), largest.get(p.id, 0.0))
             if fu > 0
             else (largest.get(p.id, 0.0))
-        )
+        ) + continuous.get(p.id, 0.0)
         area = 3.141592653589793 * p.inside_diameter_m**2 / 4
         vel = q / area
         re = friction.reynolds(vel, p.inside_diameter_m, w.density, w.viscosity)

@@ -81,6 +81,7 @@ class Fixture:
     flush_valve: bool
     label: str = ""
     line: int | None = None
+    continuous: bool = False
 
     @property
     def sides(self) -> tuple[Side, ...]:

@@ -579,6 +579,7 @@ def _fixture(c: _Collector, it: Expanded, n: int, default_use: str) -> Fixture |
         flush_valve=kind.flush_valve,
         label=it.label,
         line=c.lines.line(key),
+        continuous=f.continuous,
     )
 
 

@@ -113,6 +113,11 @@ class FixtureIn(_Strict):
         Literal["solenoid", "self-closing", "lever", "flush-valve", "manual", "sensor"] | None
     ) = None
     use: Literal["private", "public"] | None = None
+    continuous: bool = Field(
+        False,
+        description="A continuous load (e.g. a hose bibb or process water left running): its flow "
+        "is added to the design flow of every pipe upstream instead of its fixture units.",
+    )
     label: Annotated[StrictStr, Field(max_length=200)] = ""
 
 
