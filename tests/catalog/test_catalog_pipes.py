@@ -55,7 +55,7 @@ B88_WALLS_IN = {
 }
 
 
-@pytest.mark.parametrize("kind_index,kind", enumerate("KLM"))
+@pytest.mark.parametrize("kind_index,kind", list(enumerate("KLM")))
 @pytest.mark.parametrize("nominal", list(B88_WALLS_IN))
 def test_copper_b88_od_and_wall(kind_index: int, kind: str, nominal: str) -> None:
     size = get_size(f"copper-{kind}", nominal)
