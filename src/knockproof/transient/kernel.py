@@ -30,16 +30,39 @@ inflow fills exactly the remaining volume (the DVCM continuity equation with the
 zero), so no liquid is made or lost at a collapse; from the next step the section is liquid again.
 ``psi = 1`` (the value used in practice, from memory).
 
-State arrays are flat over all sections (pipes end to end); old and new arrays swap every step.
-Flows are stored scaled to head units, ``q = B Q`` [m], with the pipe's own ``B``: then the
-characteristics read ``C_P = H_A + q_A - R' q_A|q_A|`` and ``C_M = H_B - q_B + R' q_B|q_B|`` with
-``R' = R/B^2``, and an interior section is ``H = (C_P + C_M)/2``, ``q = (C_P - C_M)/2``: one
-coefficient per section and no division, which halves the memory traffic of the update. Each section
-keeps its upstream-side flow ``qu``; the downstream-side flow ``qd`` is kept only where a cavity is
-open or closed this step (cavity volume non-zero; ``JUST_CLOSED`` marks the latter). A step is: (1)
-a liquid update of every section in one flat loop, counting sections below their vapour head; (2)
-the nodes, which overwrite the pipe-end sections; (3) the DVCM update, redone from the old state, of
-the interiors of pipes that hold cavities or were flagged in (1).
+State: flat over all sections (pipes end to end, in the layout order of
+:mod:`knockproof.transient.assembly`). Flows are scaled to head units, ``q = B Q`` [m], with the
+pipe's own ``B``, so that the characteristics read ``C_P = H_A + q_A - R' q_A|q_A|`` and ``C_M = H_B -
+q_B + R' q_B|q_B|`` with ``R' = R/B^2``, and an interior section is ``H = (C_P + C_M)/2``, ``q =
+(C_P - C_M)/2``: one coefficient per section and no division. Each section keeps the two
+characteristics it sends out, ``C+ = H + q - R' q|q|`` (read by the section downstream as its
+``C_P``) and ``C- = H - q + R' q|q|`` (read upstream as ``C_M``), in two arrays; each is computed
+once, where the section is updated, and the arithmetic is the same as computing it where it is
+read. A section with an open cavity (or one that closed this step, ``JUST_CLOSED``) sends ``C+``
+with its downstream-side flow and ``C-`` with its upstream-side one.
+
+A step reads the old state and writes the new (they swap every step; the flat loop gets their
+halves as four separate arrays, so that the compiler can tell that they do not overlap and
+vectorises it). Block by block
+(consecutive pipes of about :data:`~knockproof.transient.assembly.BLOCK_SECTIONS` sections, while
+their data is in cache): (1) the liquid update of every section in one flat loop, counting the
+interior sections below a bound of the block's vapour heads; (2) the plain junctions whose pipe
+ends all lie in blocks done so far, which overwrite their pipe-end sections: dead ends and two-pipe
+junctions whose two pipe-end sections are neighbours (the great majority in a building: fixture
+stubs and runs) in tight loops over contiguous arrays, with one unsigned section number per node,
+then the others. After the blocks: (3) the heads of the plain junctions are checked against their
+vapour heads in one vectorised pass that also keeps the peaks; those that fail (and the
+reservoirs, valves and arrestors) go to the general node solver; (4) the DVCM update, from the old
+state, of the pipes that hold cavities or that the count in (1) flags (then checked section by
+section). Sums at a node run over its pipe ends in a canonical order, so the layout order changes
+no result; the grouping into blocks and classes changes no arithmetic either. The interior heads
+and the node heads are checked every step (a head beyond :data:`HEAD_LIMIT_M` or not finite stops
+the run and names the pipe), as the vapour heads must be.
+
+The helper functions are compiled without numba's reference counting (``_nrt=False``; they
+allocate nothing): with it, each array passed costs atomic increments and decrements per call,
+more than the work of a small node or a short pipe. The general node equations are written out in
+:func:`run` for the same reason (a call with forty arrays as arguments costs more than a node).
 """
 
 from __future__ import annotations
@@ -72,7 +95,7 @@ JUST_CLOSED = -1.0
 """Cavity-volume marker of a section whose cavity closed this step (liquid, two flows differ)."""
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def area_ratio(family, exponent, closure, start, t):  # pragma: no cover - compiled
     """Effective-area ratio of a valve; the same laws as closure.effective_area_ratio."""
     if family == 0:
@@ -87,7 +110,7 @@ def area_ratio(family, exponent, closure, start, t):  # pragma: no cover - compi
     return 1.0 - s**exponent
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def _valve_head(cs, bs, v0, v1, cv, vz):  # pragma: no cover - compiled
     """Head at a node with valves v0..v1 given C_s, B_s; returns (H, dQ_valves/dH)."""
     if v1 == v0:
@@ -135,7 +158,7 @@ def _valve_head(cs, bs, v0, v1, cv, vz):  # pragma: no cover - compiled
     return head, dq
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def _arrestor(cs, bs, v0, v1, cv, vz, dt, c0, n, k, z, hb, vol_old, q_old):  # pragma: no cover
     """Solve a node with a gas cushion: returns (H, Q_a, V_gas, converged)."""
     qa = q_old
@@ -158,7 +181,7 @@ def _arrestor(cs, bs, v0, v1, cv, vz, dt, c0, n, k, z, hb, vol_old, q_old):  # p
     return cs, qa, vol_old, False
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def _special_node(
     gi,
     kind,
@@ -235,239 +258,186 @@ def _special_node(
     return head
 
 
-@njit(cache=True)
-def _flat_pass(S, T, sr, thr, block_pipe, off, block_bad):  # pragma: no cover - compiled
-    """Liquid update of every section from its neighbours, block by block (see the module notes).
+NODE_CHUNK = 64
+"""The plain junctions are checked against their thresholds in chunks of this many."""
 
-    Pipe ends get a value too, which the nodes overwrite. ``block_bad[b]`` counts the sections of
-    block ``b`` below their threshold ``thr`` (vapour head of an interior section of a liquid pipe,
-    ``-HEAD_LIMIT_M`` elsewhere) or beyond :data:`HEAD_LIMIT_M` or not finite; returns the total.
-    """
-    n = len(sr)
-    total = 0
-    for b in range(len(block_pipe) - 1):
-        k0 = max(off[block_pipe[b]], 1)
-        k1 = min(off[block_pipe[b + 1]], n - 1)
-        nbad = 0
-        for k in range(k0, k1):
-            cp = S[k - 1]
-            cm = S[n + k + 1]
+PIPE_END = -1.0
+"""Stands for the friction coefficient of a pipe's first and last sections in the array the flat
+loop reads (see :func:`_flat_block`), so that they are not counted; the nodes use the pipe's
+own."""
+
+
+@njit(cache=True, _nrt=False)
+def _flat_block(A, B, An, Bn, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - compiled
+    """Liquid update of sections ``k0 .. k1-1`` from the old state ``A``, ``B`` into ``An``,
+    ``Bn``; returns how many interior sections fall below ``thr`` or beyond
+    :data:`HEAD_LIMIT_M` or are not finite. The pipes' first and last sections (``sr`` =
+    :data:`PIPE_END`) get a value too, which the nodes overwrite where it is read."""
+    m = k1 - k0
+    if m <= 0:
+        return 0
+    # views indexed from 0: no negative index, and the compiler vectorises the loop
+    a_in = A[k0 - 1 : k1 - 1]
+    b_in = B[k0 + 1 : k1 + 1]
+    a_out = An[k0:k1]
+    b_out = Bn[k0:k1]
+    r = sr[k0:k1]
+    nbad = 0
+    if write_h:
+        h_out = Hf[k0:k1]
+        for i in range(m):
+            cp = a_in[i]
+            cm = b_in[i]
             h = 0.5 * (cp + cm)
             q = 0.5 * (cp - cm)
-            f = sr[k] * q * abs(q)
-            T[k] = h + q - f
-            T[n + k] = h - q + f
-            nbad += not (h >= thr[k] and h <= HEAD_LIMIT_M)
-        block_bad[b] = nbad
+            f = r[i] * q * abs(q)
+            a_out[i] = h + q - f
+            b_out[i] = h - q + f
+            h_out[i] = h
+            nbad += (r[i] >= 0.0) & (not (h >= thr and h <= HEAD_LIMIT_M))
+    else:
+        for i in range(m):
+            cp = a_in[i]
+            cm = b_in[i]
+            h = 0.5 * (cp + cm)
+            q = 0.5 * (cp - cm)
+            f = r[i] * q * abs(q)
+            a_out[i] = h + q - f
+            b_out[i] = h - q + f
+            nbad += (r[i] >= 0.0) & (not (h >= thr and h <= HEAD_LIMIT_M))
+    return nbad
+
+
+@njit(cache=True, _nrt=False)
+def _end_nodes(
+    A, B, An, Bn, d0, d1, m0, m1, j0, j1, n_dead, esec, er, einv, gbs, gh
+):  # pragma: no cover - compiled
+    """Dead ends at the last section of their pipe (groups ``d0 .. d1-1``), at the first (``m0 ..
+    m1-1``), and two-pipe junctions where a pipe's last section is followed by the next pipe's
+    first (``j0 .. j1-1``): heads into ``gh``, and what they send into their pipes into ``An``,
+    ``Bn``, from the old state ``A``, ``B``. The dead ends are groups ``0 .. n_dead-1`` with one
+    pipe end each (end number = group number); the two-pipe junctions follow with two each, the
+    arriving pipe's first. Loops over views from 0 with unsigned section numbers: the compiler adds
+    no negative-index checks."""
+    one = np.uint64(1)
+    two = np.uint64(2)
+    sec = esec[d0:d1]
+    w = einv[d0:d1]
+    r = er[d0:d1]
+    g = gbs[d0:d1]
+    h = gh[d0:d1]
+    for i in range(d1 - d0):
+        k = sec[i]
+        ce = A[k - one]
+        head = (0.0 + ce * w[i]) * g[i]
+        q = ce - head
+        Bn[k] = head - q + r[i] * q * abs(q)
+        h[i] = head
+    sec = esec[m0:m1]
+    w = einv[m0:m1]
+    r = er[m0:m1]
+    g = gbs[m0:m1]
+    h = gh[m0:m1]
+    for i in range(m1 - m0):
+        k = sec[i]
+        ce = B[k + one]
+        head = (0.0 + ce * w[i]) * g[i]
+        q = -(ce - head)
+        An[k] = head + q - r[i] * q * abs(q)
+        h[i] = head
+    e0 = 2 * j0 - n_dead
+    e1 = 2 * j1 - n_dead
+    sec = esec[e0:e1]
+    w = einv[e0:e1]
+    r = er[e0:e1]
+    g = gbs[j0:j1]
+    h = gh[j0:j1]
+    for i in range(j1 - j0):
+        k = sec[2 * i]
+        ca = A[k - one]
+        cb = B[k + two]
+        head = ((0.0 + ca * w[2 * i]) + cb * w[2 * i + 1]) * g[i]
+        q = ca - head
+        Bn[k] = head - q + r[2 * i] * q * abs(q)
+        q = -(cb - head)
+        An[k + one] = head + q - r[2 * i + 1] * q * abs(q)
+        h[i] = head
+
+
+@njit(cache=True, _nrt=False)
+def _other_nodes(S, Sn, g0, g1, eptr, ein, eout, esgn, er, einv, gbs, gh, cbuf):  # pragma: no cover
+    """The other plain junctions ``g0 .. g1-1`` (pipe ends in a canonical order), from the old
+    state ``S`` (``C+`` of every section, then ``C-``) into the new, ``Sn``: pipe end ``e`` brings
+    ``S[ein[e]]`` and its node sends back ``Sn[eout[e]]``."""
+    for gi in range(g0, g1):
+        e0 = np.uint64(eptr[gi])
+        d = np.uint64(eptr[gi + 1]) - e0
+        scb = 0.0
+        for j in range(d):
+            ce = S[ein[e0 + j]]
+            cbuf[j] = ce
+            scb += ce * einv[e0 + j]
+        head = scb * gbs[gi]
+        gh[gi] = head
+        for j in range(d):
+            e = e0 + j
+            s = esgn[e]
+            q = s * (cbuf[j] - head)
+            Sn[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
+
+
+@njit(cache=True, _nrt=False)
+def _check_plain(gh, gthr, gmax, gmin, n_plain, chunk_bad):  # pragma: no cover - compiled
+    """Peaks of the plain junctions whose head is at or above its threshold (vapour head, or +inf
+    while the junction holds a cavity) and within :data:`HEAD_LIMIT_M`; per chunk of
+    :data:`NODE_CHUNK` junctions, how many are not (the general solver redoes them). Returns the
+    total."""
+    total = 0
+    for c in range(len(chunk_bad)):
+        lo = c * NODE_CHUNK
+        hi = min(lo + NODE_CHUNK, n_plain)
+        h_v = gh[lo:hi]
+        t_v = gthr[lo:hi]
+        mx_v = gmax[lo:hi]
+        mn_v = gmin[lo:hi]
+        nbad = 0
+        for i in range(hi - lo):
+            h = h_v[i]
+            good = (h >= t_v[i]) & (h <= HEAD_LIMIT_M)
+            nbad += not good
+            mx = mx_v[i]
+            mx_v[i] = h if (good & (h > mx)) else mx
+            mn = mn_v[i]
+            mn_v[i] = h if (good & (h < mn)) else mn
+        chunk_bad[c] = nbad
         total += nbad
     return total
 
 
-@njit(cache=True)
-def _plain_nodes(
-    S, T, g0, g1, degree, eptr, ein, eout, esgn, er, einv, gbs, gthr, gmax, gmin, gh, deferred, nd
-):  # pragma: no cover - compiled
-    """Plain liquid junctions ``g0 .. g1-1``, all of ``degree`` pipe ends; returns the new count
-    of deferred groups (a head below ``gthr`` or beyond the limit goes to the general solver)."""
-    e0 = eptr[g0]
-    if degree == 1:  # dead ends
-        for gi in range(g0, g1):
-            e = e0 + (gi - g0)
-            ce = S[ein[e]]
-            head = (0.0 + ce * einv[e]) * gbs[gi]
-            if not (head >= gthr[gi] and head <= HEAD_LIMIT_M):
-                deferred[nd] = gi
-                nd += 1
-                continue
-            s = esgn[e]
-            q = s * (ce - head)
-            T[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
-            gh[gi] = head
-            if head > gmax[gi]:
-                gmax[gi] = head
-            if head < gmin[gi]:
-                gmin[gi] = head
-    elif degree == 2:  # series junctions
-        for gi in range(g0, g1):
-            e = e0 + 2 * (gi - g0)
-            ca = S[ein[e]]
-            cb = S[ein[e + 1]]
-            head = ((0.0 + ca * einv[e]) + cb * einv[e + 1]) * gbs[gi]
-            if not (head >= gthr[gi] and head <= HEAD_LIMIT_M):
-                deferred[nd] = gi
-                nd += 1
-                continue
-            s = esgn[e]
-            q = s * (ca - head)
-            T[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
-            s = esgn[e + 1]
-            q = s * (cb - head)
-            T[eout[e + 1]] = head - s * q + s * (er[e + 1] * q * abs(q))
-            gh[gi] = head
-            if head > gmax[gi]:
-                gmax[gi] = head
-            if head < gmin[gi]:
-                gmin[gi] = head
-    else:
-        for gi in range(g0, g1):
-            e0 = eptr[gi]
-            e1 = e0 + degree
-            scb = 0.0
-            for e in range(e0, e1):
-                scb += S[ein[e]] * einv[e]
-            head = scb * gbs[gi]
-            if not (head >= gthr[gi] and head <= HEAD_LIMIT_M):
-                deferred[nd] = gi
-                nd += 1
-                continue
-            for e in range(e0, e1):
-                s = esgn[e]
-                q = s * (S[ein[e]] - head)
-                T[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
-            gh[gi] = head
-            if head > gmax[gi]:
-                gmax[gi] = head
-            if head < gmin[gi]:
-                gmin[gi] = head
-    return nd
+@njit(cache=True, _nrt=False)
+def _flagged(p, A, B, off, nre, hv0, dhv, cav_on):  # pragma: no cover - compiled
+    """Whether an interior section of liquid pipe p falls below its vapour head (or beyond the
+    limit, or is not finite) in this step (from the old state ``A``, ``B``)."""
+    o = off[p]
+    for k in range(o + 1, o + nre[p]):
+        h = 0.5 * (A[k - 1] + B[k + 1])
+        thr = hv0[p] + dhv[p] * (k - o) if cav_on else -HEAD_LIMIT_M
+        if not (h >= thr and h <= HEAD_LIMIT_M):
+            return True
+    return False
 
 
-@njit(cache=True)
-def _general_nodes(
-    step,
-    t,
-    dt,
-    psi,
-    cav_on,
-    S,
-    T,
-    n_plain,
-    deferred,
-    n_deferred,
-    gkind,
-    gfixed,
-    ghv,
-    gthr,
-    gbs,
-    gh,
-    eptr,
-    ein,
-    eout,
-    esgn,
-    er,
-    einv,
-    vptr,
-    vq0,
-    vdh0,
-    vz,
-    vfam,
-    vexp,
-    vtc,
-    vt0,
-    vq,
-    vvol,
-    cvb,
-    garr,
-    ac0,
-    an,
-    ak,
-    az,
-    avol,
-    aq,
-    hb,
-    gvol,
-    gnet,
-    gcav,
-    gmax,
-    gmin,
-    acc,
-    stats,
-):  # pragma: no cover - compiled
-    """The deferred plain junctions, then the reservoirs, valves and arrestors (numbered after the
-    plain junctions): the general node equations of :func:`_special_node`."""
-    for v in range(len(vq0)):
-        if vq0[v] > 0.0:
-            tau = area_ratio(vfam[v], vexp[v], vtc[v], vt0[v], t)
-            cvb[v] = (tau * vq0[v]) ** 2 / vdh0[v]
-        else:
-            cvb[v] = 0.0
-    supply = 0.0
-    n_groups = len(gkind)
-    for m in range(n_deferred + n_groups - n_plain):
-        gi = deferred[m] if m < n_deferred else n_plain + m - n_deferred
-        e0 = eptr[gi]
-        e1 = eptr[gi + 1]
-        scb = 0.0
-        for e in range(e0, e1):
-            scb += S[ein[e]] * einv[e]
-        bs = gbs[gi]
-        cs = scb * bs
-        kind = gkind[gi]
-        head = _special_node(
-            gi,
-            kind,
-            cs,
-            bs,
-            step,
-            dt,
-            psi,
-            cav_on,
-            gfixed,
-            ghv,
-            vptr,
-            vz,
-            cvb,
-            garr,
-            ac0,
-            an,
-            ak,
-            az,
-            avol,
-            aq,
-            hb,
-            gvol,
-            gnet,
-            gcav,
-            acc,
-            stats,
-        )
-        if not (abs(head) <= HEAD_LIMIT_M):
-            stats[ST_STATUS] = STATUS_NODE_NONFINITE
-            stats[ST_WHERE] = gi
-        if stats[ST_STATUS] != STATUS_OK:
-            return
-        if gi < n_plain:
-            gthr[gi] = np.inf if gvol[gi] > 0.0 else ghv[gi]
-        qv_total = 0.0
-        for v in range(vptr[gi], vptr[gi + 1]):
-            dh = head - vz[v]
-            qn = math.sqrt(cvb[v] * dh) if (cvb[v] > 0.0 and dh > 0.0) else 0.0
-            vvol[v] += 0.5 * dt * (vq[v] + qn)
-            vq[v] = qn
-            qv_total += qn
-        if kind == 1:
-            supply += qv_total + (head - cs) / bs
-        for e in range(e0, e1):
-            s = esgn[e]
-            q = s * (S[ein[e]] - head)
-            T[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
-        gh[gi] = head
-        if head > gmax[gi]:
-            gmax[gi] = head
-        if head < gmin[gi]:
-            gmin[gi] = head
-    acc[ACC_SUPPLY] = supply
-
-
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def _pipe_with_cavities(
     p,
     step,
     dt,
     psi,
     cav_on,
-    S,
-    T,
+    A,
+    B,
+    An,
+    Bn,
     Vc,
     Qcu,
     Qcd,
@@ -485,28 +455,29 @@ def _pipe_with_cavities(
 ):  # pragma: no cover - compiled
     """DVCM update of the interior of pipe ``p``; returns its number of open (or closing) cavities.
 
-    Flows are scaled (``q = B Q``); the cavity volume uses real flows ``(qd - qu)/B``. A section
-    with a cavity keeps its two flows in ``Qcu``, ``Qcd``; its outgoing characteristics use the
-    downstream-side flow for ``C+`` and the upstream-side flow for ``C-``.
+    From the old state ``A``, ``B`` into ``An``, ``Bn``. Flows are scaled (``q = B Q``); the cavity
+    volume uses real flows ``(qd - qu)/B``. A section with a cavity keeps its two flows in ``Qcu``,
+    ``Qcd``; its outgoing characteristics use the downstream-side flow for ``C+`` and the
+    upstream-side flow for ``C-``.
     """
-    ns = len(Vc)
     n = nre[p]
     o = off[p]
     inv_b = 1.0 / bco[p]
     r = rco[p]
     count = 0
     for k in range(o + 1, o + n):
+        j = k - o
         v_old = Vc[k]
         if v_old < 0.0:  # JUST_CLOSED last step: liquid now
             v_old = 0.0
-        cp = S[k - 1]
-        cm = S[ns + k + 1]
+        cp = A[k - 1]
+        cm = B[k + 1]
         h = 0.5 * (cp + cm)
         if not (abs(h) <= HEAD_LIMIT_M):
             stats[ST_STATUS] = STATUS_PIPE_NONFINITE
             stats[ST_WHERE] = p
             return count
-        hv = hv0[p] + dhv[p] * (k - o)
+        hv = hv0[p] + dhv[p] * j
         if cav_on and (v_old > 0.0 or h < hv - 1e-6):
             qu = cp - hv
             qd = hv - cm
@@ -514,13 +485,12 @@ def _pipe_with_cavities(
             vol = v_old + dt * (psi * (qd - qu) * inv_b + (1.0 - psi) * old_rate)
             if vol > 0.0:
                 Hf[k] = hv
-                T[k] = hv + qd - r * qd * abs(qd)
-                T[ns + k] = hv - qu + r * qu * abs(qu)
+                An[k] = hv + qd - r * qd * abs(qd)
+                Bn[k] = hv - qu + r * qu * abs(qu)
                 Qcu[k] = qu
                 Qcd[k] = qd
                 Vc[k] = vol
                 count += 1
-                j = k - o
                 if 2 * j <= n:
                     cav_up[p] = True
                 if 2 * j >= n:
@@ -534,8 +504,8 @@ def _pipe_with_cavities(
                 qu = cp - h
                 qd = h - cm
                 Hf[k] = h
-                T[k] = h + qd - r * qd * abs(qd)
-                T[ns + k] = h - qu + r * qu * abs(qu)
+                An[k] = h + qd - r * qd * abs(qd)
+                Bn[k] = h - qu + r * qu * abs(qu)
                 Vc[k] = JUST_CLOSED
                 count += 1  # its two flows still differ: keep the pipe on this path one more step
                 stats[ST_COLLAPSES] += 1
@@ -546,29 +516,24 @@ def _pipe_with_cavities(
         Hf[k] = h
         q = 0.5 * (cp - cm)
         f = r * q * abs(q)
-        T[k] = h + q - f
-        T[ns + k] = h - q + f
+        An[k] = h + q - f
+        Bn[k] = h - q + f
     return count
 
 
-@njit(cache=True)
-def _set_threshold(p, off, nre, hv0, dhv, thr, liquid):  # pragma: no cover - compiled
-    """Thresholds of pipe p's interior: vapour heads while liquid, none while it has a cavity."""
-    o = off[p]
-    for k in range(o + 1, o + nre[p]):
-        thr[k] = hv0[p] + dhv[p] * (k - o) if liquid else -HEAD_LIMIT_M
-
-
-@njit(cache=True)
-def _flagged(p, S, thr, off, nre):  # pragma: no cover - compiled
-    """Whether a liquid section of pipe p's interior fell below its threshold (or blew up)."""
-    ns = len(thr)
-    o = off[p]
-    for k in range(o + 1, o + nre[p]):
-        h = 0.5 * (S[k - 1] + S[ns + k + 1])
-        if not (h >= thr[k] and h <= HEAD_LIMIT_M):
-            return True
-    return False
+@njit(cache=True, _nrt=False)
+def _block_threshold(b, block_pipe, nre, hv0, dhv, cavcount, cav_on):  # pragma: no cover
+    """Highest vapour head of an interior section of a liquid pipe in block ``b`` (a bound for
+    the flat check; the pipes are then checked section by section)."""
+    thr = -HEAD_LIMIT_M
+    if not cav_on:
+        return thr
+    for p in range(block_pipe[b], block_pipe[b + 1]):
+        n = nre[p]
+        if n < 2 or cavcount[p] > 0:
+            continue
+        thr = max(thr, hv0[p] + dhv[p] * 1, hv0[p] + dhv[p] * (n - 1))
+    return thr
 
 
 @njit(cache=True)
@@ -585,23 +550,24 @@ def run(
     hv0,
     dhv,
     sr,
-    thr0,
     block_pipe,
+    pipe_rank,
     n_plain,
-    class_start,
-    class_degree,
+    node_classes,
+    block_nodes,
     gkind,
     gfixed,
     ghv,
     gbs,
     ghead0,
+    group_rank,
     eptr,
-    ein,
-    eout,
     esgn,
     er,
     einv,
     esec,
+    ein,
+    eout,
     vptr,
     vq0,
     vdh0,
@@ -633,23 +599,43 @@ def run(
     """Advance ``n_steps`` steps of ``dt``; fill the output arrays; return the final state.
 
     ``state0`` holds the outgoing characteristics ``C+`` then ``C-`` of every section (length
-    ``2 N``); ``rco`` and ``sr`` are scaled (``R/B^2``); ``bco`` is ``B`` per pipe. ``ein`` and
-    ``eout`` index, per pipe end, the characteristic a node receives (in ``state0``'s layout) and
-    the one it sends back. Returns (section heads, arrestor gas volumes, cavity volume left).
+    ``2 N``); ``rco`` is scaled (``R/B^2``), ``sr`` too but marks the pipes' first and last
+    sections (:data:`PIPE_END`); ``bco`` is ``B`` per pipe. Per pipe end: ``esec`` its section,
+    ``ein`` where in ``state0`` the characteristic its node receives is, ``eout`` where the one
+    the node sends goes. Groups ``0 .. node_classes[2]-1`` are the dead ends and two-pipe
+    junctions of :func:`_end_nodes`, the other plain junctions follow; ``block_nodes[c, b]`` is the
+    first group of class ``c`` (dead ends at a last section, at a first, two-pipe junctions,
+    others) done with block ``b`` (the last block that holds one of its sections). ``pipe_rank``
+    and ``group_rank`` give the order of the final sums. Returns (section heads, arrestor gas
+    volumes, cavity volume left).
     """
     ns = len(sr)
+    # old and new state, C+ of every section then C-; they swap every step. The flat loop gets the
+    # halves as four separate arguments, so that the compiler can tell that they do not overlap
+    # and vectorises it
     S = state0.copy()
-    T = state0.copy()
+    Sn = state0.copy()
+    A = S[:ns]
+    B = S[ns:]
+    An = Sn[:ns]
+    Bn = Sn[ns:]
+    cbuf = np.empty(max(1, np.max(eptr[1:] - eptr[:-1])))
     Vc = np.zeros(ns)
     Qcu = np.zeros(ns)
     Qcd = np.zeros(ns)
     Hf = np.zeros(ns)
-    thr = thr0.copy()
     gthr = ghv.copy()
     n_groups = len(gkind)
     n_pipes = len(off)
     n_blocks = len(block_pipe) - 1
+    block_of = np.empty(n_pipes, dtype=np.int64)
+    block_thr = np.empty(n_blocks)
     block_bad = np.zeros(n_blocks, dtype=np.int64)
+    cavcount = np.zeros(n_pipes, dtype=np.int64)
+    for b in range(n_blocks):
+        block_of[block_pipe[b] : block_pipe[b + 1]] = b
+        block_thr[b] = _block_threshold(b, block_pipe, nre, hv0, dhv, cavcount, cav_on)
+    chunk_bad = np.zeros((n_plain + NODE_CHUNK - 1) // NODE_CHUNK, dtype=np.int64)
     deferred = np.zeros(n_groups, dtype=np.int64)
     cvb = np.zeros(len(vq0))
     vq = vq0.copy()
@@ -658,14 +644,12 @@ def run(
     gvol = np.zeros(n_groups)
     gnet = np.zeros(n_groups)
     gh = ghead0.copy()
-    cavcount = np.zeros(n_pipes, dtype=np.int64)
-    todo = np.zeros(n_pipes, dtype=np.int64)  # pipes on the DVCM path this step
-    active = np.zeros(n_pipes, dtype=np.int64)  # pipes holding cavities (increasing)
+    todo = np.zeros(n_pipes, dtype=np.int64)  # pipes on the DVCM path this step, increasing
+    active = np.zeros(n_pipes, dtype=np.int64)  # pipes holding cavities, increasing
     n_active = 0
     n_todo = 0
-    off_end = np.empty(n_pipes + 1, dtype=np.int64)
-    off_end[:n_pipes] = off
-    off_end[n_pipes] = ns
+    esec_u = esec.astype(np.uint64)  # unsigned: see _end_nodes
+    n_dead = node_classes[1]
     stats[ST_FIRST_COLLAPSE] = -1
     for gi in range(n_groups):
         gmax_first[gi] = ghead0[gi]
@@ -676,16 +660,39 @@ def run(
     supply_old = acc[ACC_SUPPLY]
     for step in range(1, n_steps + 1):
         t = step * dt
+        last = step == n_steps
         gmax = gmax_after if stats[ST_FIRST_COLLAPSE] >= 0 else gmax_first
-        nbad = _flat_pass(S, T, sr, thr, block_pipe, off_end, block_bad)
-        nd = 0
-        for c in range(len(class_degree)):
-            nd = _plain_nodes(
+        # 1. block by block, the sections, then the nodes whose sections are all done (their
+        # data still in cache): dead ends and two-pipe junctions, the other plain junctions
+        nbad = 0
+        for b in range(n_blocks):
+            k0 = max(off[block_pipe[b]], 1)
+            k1 = off[block_pipe[b + 1]] if b + 1 < n_blocks else ns - 1
+            block_bad[b] = _flat_block(A, B, An, Bn, sr, k0, k1, block_thr[b], Hf, last)
+            nbad += block_bad[b]
+            _end_nodes(
+                A,
+                B,
+                An,
+                Bn,
+                block_nodes[0, b],
+                block_nodes[0, b + 1],
+                block_nodes[1, b],
+                block_nodes[1, b + 1],
+                block_nodes[2, b],
+                block_nodes[2, b + 1],
+                n_dead,
+                esec_u,
+                er,
+                einv,
+                gbs,
+                gh,
+            )
+            _other_nodes(
                 S,
-                T,
-                class_start[c],
-                class_start[c + 1],
-                class_degree[c],
+                Sn,
+                block_nodes[3, b],
+                block_nodes[3, b + 1],
                 eptr,
                 ein,
                 eout,
@@ -693,76 +700,115 @@ def run(
                 er,
                 einv,
                 gbs,
-                gthr,
-                gmax,
-                gmin,
                 gh,
-                deferred,
-                nd,
+                cbuf,
             )
-        _general_nodes(
-            step,
-            t,
-            dt,
-            psi,
-            cav_on,
-            S,
-            T,
-            n_plain,
-            deferred,
-            nd,
-            gkind,
-            gfixed,
-            ghv,
-            gthr,
-            gbs,
-            gh,
-            eptr,
-            ein,
-            eout,
-            esgn,
-            er,
-            einv,
-            vptr,
-            vq0,
-            vdh0,
-            vz,
-            vfam,
-            vexp,
-            vtc,
-            vt0,
-            vq,
-            vvol,
-            cvb,
-            garr,
-            ac0,
-            an,
-            ak,
-            az,
-            avol,
-            aq,
-            hb,
-            gvol,
-            gnet,
-            gcav,
-            gmax,
-            gmin,
-            acc,
-            stats,
-        )
+        # 2. heads checked; the general solver for those that fail and for the reservoirs, valves
+        # and arrestors
+        nd = 0
+        if _check_plain(gh, gthr, gmax, gmin, n_plain, chunk_bad) > 0:
+            for c in range(len(chunk_bad)):
+                if chunk_bad[c] > 0:
+                    for gi in range(c * NODE_CHUNK, min((c + 1) * NODE_CHUNK, n_plain)):
+                        h = gh[gi]
+                        if not (h >= gthr[gi] and h <= HEAD_LIMIT_M):
+                            deferred[nd] = gi
+                            nd += 1
+        for v in range(len(vq0)):  # the valves' discharge coefficients at this time
+            if vq0[v] > 0.0:
+                tau = area_ratio(vfam[v], vexp[v], vtc[v], vt0[v], t)
+                cvb[v] = (tau * vq0[v]) ** 2 / vdh0[v]
+            else:
+                cvb[v] = 0.0
+        supply = 0.0
+        for m in range(nd + n_groups - n_plain):
+            # the general node equations of _special_node: a plain junction whose head failed its
+            # check, or a reservoir, valve or arrestor (written out here: a call with this many
+            # arrays as arguments costs more than the work)
+            gi = deferred[m] if m < nd else n_plain + m - nd
+            e0 = eptr[gi]
+            e1 = eptr[gi + 1]
+            scb = 0.0
+            for e in range(e0, e1):
+                k = esec[e]
+                scb += (A[k - 1] if esgn[e] > 0.0 else B[k + 1]) * einv[e]
+            bs = gbs[gi]
+            cs = scb * bs
+            kind = gkind[gi]
+            head = _special_node(
+                gi,
+                kind,
+                cs,
+                bs,
+                step,
+                dt,
+                psi,
+                cav_on,
+                gfixed,
+                ghv,
+                vptr,
+                vz,
+                cvb,
+                garr,
+                ac0,
+                an,
+                ak,
+                az,
+                avol,
+                aq,
+                hb,
+                gvol,
+                gnet,
+                gcav,
+                acc,
+                stats,
+            )
+            if not (abs(head) <= HEAD_LIMIT_M):
+                stats[ST_STATUS] = STATUS_NODE_NONFINITE
+                stats[ST_WHERE] = gi
+            if stats[ST_STATUS] != STATUS_OK:
+                break
+            if gi < n_plain:
+                gthr[gi] = np.inf if gvol[gi] > 0.0 else ghv[gi]
+            qv_total = 0.0
+            for v in range(vptr[gi], vptr[gi + 1]):
+                dh = head - vz[v]
+                qn = math.sqrt(cvb[v] * dh) if (cvb[v] > 0.0 and dh > 0.0) else 0.0
+                vvol[v] += 0.5 * dt * (vq[v] + qn)
+                vq[v] = qn
+                qv_total += qn
+            if kind == 1:
+                supply += qv_total + (head - cs) / bs
+            for e in range(e0, e1):
+                k = esec[e]
+                sg = esgn[e]
+                if sg > 0.0:
+                    q = sg * (A[k - 1] - head)
+                    Bn[k] = head - sg * q + sg * (er[e] * q * abs(q))
+                else:
+                    q = sg * (B[k + 1] - head)
+                    An[k] = head - sg * q + sg * (er[e] * q * abs(q))
+            gh[gi] = head
+            if head > gmax[gi]:
+                gmax[gi] = head
+            if head < gmin[gi]:
+                gmin[gi] = head
+        acc[ACC_SUPPLY] = supply
         if stats[ST_STATUS] != STATUS_OK:
             stats[ST_STEP] = step
             break
+        # 3. DVCM: pipes newly below their vapour head (found in the blocks that have some),
+        # merged in increasing order with those holding cavities
         n_todo = 0
         if nbad > 0 or n_active > 0:
-            # pipes newly below their vapour head (in the flagged blocks), merged in increasing
-            # order with those holding cavities
             i = 0
             for b in range(n_blocks):
                 if block_bad[b] == 0:
                     continue
                 for p in range(block_pipe[b], block_pipe[b + 1]):
-                    if nre[p] < 2 or cavcount[p] > 0 or not _flagged(p, S, thr, off, nre):
+                    if nre[p] < 2 or cavcount[p] > 0:
+                        continue
+                    if not _flagged(p, A, B, off, nre, hv0, dhv, cav_on):
                         continue
                     while i < n_active and active[i] < p:
                         todo[n_todo] = active[i]
@@ -783,8 +829,10 @@ def run(
                     dt,
                     psi,
                     cav_on,
-                    S,
-                    T,
+                    A,
+                    B,
+                    An,
+                    Bn,
                     Vc,
                     Qcu,
                     Qcd,
@@ -803,7 +851,9 @@ def run(
                 if stats[ST_STATUS] != STATUS_OK:
                     break
                 if (count > 0) != (cavcount[p] > 0):
-                    _set_threshold(p, off, nre, hv0, dhv, thr, count == 0)
+                    cavcount[p] = count
+                    b = block_of[p]
+                    block_thr[b] = _block_threshold(b, block_pipe, nre, hv0, dhv, cavcount, cav_on)
                 cavcount[p] = count
                 if count > 0:
                     active[n_active] = p
@@ -817,22 +867,17 @@ def run(
             row = step // rec_every
             for r in range(len(rec_groups)):
                 rec_out[row, r] = gh[rec_groups[r]]
-        if step == n_steps:  # heads of the final state (the DVCM path wrote its pipes' own)
-            done = np.zeros(n_pipes, dtype=np.bool_)
-            for m in range(n_todo):
-                done[todo[m]] = True
-            for p in range(n_pipes):
-                if not done[p]:
-                    for k in range(off[p] + 1, off[p] + nre[p]):
-                        Hf[k] = 0.5 * (S[k - 1] + S[ns + k + 1])
-        S, T = T, S
+        S, Sn = Sn, S
+        A, An = An, A
+        B, Bn = Bn, B
     for gi in range(n_groups):
         for e in range(eptr[gi], eptr[gi + 1]):
             Hf[esec[e]] = gh[gi]
     total_cavity = 0.0
-    for k in range(ns):
-        if Vc[k] > 0.0:
-            total_cavity += Vc[k]
-    for gi in range(n_groups):
+    for p in pipe_rank:
+        for k in range(off[p], off[p] + nre[p] + 1):
+            if Vc[k] > 0.0:
+                total_cavity += Vc[k]
+    for gi in group_rank:
         total_cavity += gvol[gi]
     return Hf, avol, total_cavity

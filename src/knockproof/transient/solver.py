@@ -13,13 +13,17 @@ collapse peak). Only the first cavity cycle is a reliable figure: with friction,
 pipe form and collapse in ways that depend on the grid, so later peaks are indicative (Wylie &
 Streeter 1993, sec. 8.4 discuss the model's spurious pressure spikes; Chaudhry 2014, ch. 11).
 
-numba is imported only when :func:`simulate` runs.
+numba is imported only when :func:`simulate` runs. The grid and the layout of the last networks
+simulated are kept (keyed by their content: :data:`GRID_CACHE_SIZE`,
+:data:`~knockproof.transient.assembly.SKELETON_CACHE_SIZE`): ``check`` simulates the same event
+bare, with arrestors and with other gas volumes, and the per-call setup then costs little.
 """
 
 from __future__ import annotations
 
 import heapq
 import time
+from collections import OrderedDict
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 
@@ -27,7 +31,7 @@ import numpy as np
 
 from knockproof.errors import SimulationError
 from knockproof.transient.assembly import build_layout, check_network
-from knockproof.transient.grid import choose_grid
+from knockproof.transient.grid import Grid, choose_grid
 from knockproof.transient.network import GRAVITY_M_PER_S2, TransientNetwork
 
 CAVITY_WEIGHT = 1.0
@@ -194,17 +198,10 @@ def simulate(
         raise SimulationError(
             f"duration must be a positive number of seconds; found {duration_s!r}"
         )
-    grid = choose_grid(
-        network.pipe_length_m,
-        network.pipe_wave_speed_m_per_s,
-        time_step_s,
-        percentile=percentile,
-        lump_ratio=lump_ratio,
-        max_wave_speed_adjustment=max_wave_speed_adjustment,
-        max_refinement=max_refinement,
-        names=network.pipe_names,
+    grid = _grid(
+        network, time_step_s, percentile, lump_ratio, max_wave_speed_adjustment, max_refinement
     )
-    lay = build_layout(network, grid, cavitation=cavitation)
+    lay = build_layout(network, grid, cavitation=cavitation, checked=True)
     dt = grid.time_step_s
     steps = max(1, int(np.ceil(duration_s / dt - 1e-9)))
     record = [int(n) for n in record_nodes]
@@ -227,18 +224,7 @@ def simulate(
     cav_dn = np.zeros(n_kept, dtype=np.bool_)
     vvol = np.zeros(len(lay.valve_flow0))
     acc = np.zeros(4)
-    flow0 = np.asarray(network.pipe_initial_flow_m3_per_s, float)
-    supply0 = 0.0
-    reservoir_groups = {int(lay.node_group[r.node]) for r in network.reservoirs}
-    for p in lay.pipe_index:
-        if int(lay.node_group[network.pipe_upstream[p]]) in reservoir_groups:
-            supply0 += flow0[p]
-        if int(lay.node_group[network.pipe_downstream[p]]) in reservoir_groups:
-            supply0 -= flow0[p]
-    for j, k in enumerate(lay.valve_order):
-        if int(lay.node_group[network.valves[k].node]) in reservoir_groups:
-            supply0 += lay.valve_flow0[j]
-    acc[kernel.ACC_SUPPLY] = supply0
+    acc[kernel.ACC_SUPPLY] = lay.supply0
     stats = np.zeros(8, dtype=np.int64)
     setup_seconds = time.perf_counter() - started
 
@@ -246,13 +232,14 @@ def simulate(
     final_head, gas_final, cavity_left = kernel.run(
         steps, dt, CAVITY_WEIGHT, cavitation,
         lay.state0,
-        lay.offset, lay.reaches, lay.b_coef, lay.r_coef / lay.b_coef**2,
-        lay.vapour_head_start, lay.vapour_head_step, lay.section_r_scaled, lay.section_threshold,
-        lay.block_pipe,
-        lay.plain_count, lay.class_start, lay.class_degree,
+        lay.offset, lay.reaches, lay.b_coef, lay.r_scaled,
+        lay.vapour_head_start, lay.vapour_head_step, lay.section_r_marked,
+        lay.block_pipe, lay.pipe_rank,
+        lay.plain_count, lay.node_classes, lay.block_nodes,
         lay.group_kind, lay.group_fixed_head, lay.group_vapour_head, lay.group_bs, lay.group_head,
-        lay.end_ptr, lay.end_in, lay.end_out, lay.end_sign_f, lay.end_r_scaled,
-        lay.end_inv_b, lay.end_section,
+        lay.group_rank,
+        lay.end_ptr, lay.end_sign_f, lay.end_r_scaled,
+        lay.end_inv_b, lay.end_section, lay.end_in, lay.end_out,
         lay.valve_ptr, lay.valve_flow0, lay.valve_drop0, lay.valve_elevation,
         lay.valve_family, lay.valve_exponent, lay.valve_closure, lay.valve_start,
         lay.group_arrestor, lay.arrestor_c0, lay.arrestor_n, lay.arrestor_k,
@@ -297,22 +284,22 @@ def simulate(
 
     node_cavity = gcav[group].copy()
     pipe_cavity = np.zeros(network.n_pipes, dtype=bool)
-    for i, p in enumerate(lay.pipe_index):
-        pipe_cavity[p] = cav_up[i] or cav_dn[i]
-        if cav_up[i]:
-            node_cavity[network.pipe_upstream[p]] = True
-        if cav_dn[i]:
-            node_cavity[network.pipe_downstream[p]] = True
+    pipe_cavity[lay.pipe_index] = cav_up | cav_dn
+    node_cavity[np.asarray(network.pipe_upstream)[lay.pipe_index[cav_up]]] = True
+    node_cavity[np.asarray(network.pipe_downstream)[lay.pipe_index[cav_dn]]] = True
 
     times = np.arange(rows) * dt * record_every
     traces = {n: rho_g * (rec_out[:, j] - z[n]) for j, n in enumerate(record)}
-    final_pipe_head = {
-        network.pipe_names[p]: final_head[lay.offset[i] : lay.offset[i] + lay.reaches[i] + 1].copy()
-        for i, p in enumerate(lay.pipe_index)
+    ends = (lay.offset + lay.reaches + 1).tolist()
+    starts = lay.offset.tolist()
+    names = network.pipe_names
+    final_pipe_head = {  # views of the kernel's own fresh array
+        names[p]: final_head[starts[i] : ends[i]]
+        for i, p in zip(lay.pipe_rank.tolist(), np.sort(lay.pipe_index).tolist(), strict=True)
     }
     valve_volume = np.zeros(len(network.valves))
     valve_volume[lay.valve_order] = vvol
-    sections = int(len(lay.head))
+    sections = lay.section_count
     return TransientResult(
         time_step_s=dt,
         duration_s=steps * dt,
@@ -347,6 +334,54 @@ def simulate(
             "gas_volume_final_m3": np.asarray(gas_final).copy(),
         },
     )
+
+
+GRID_CACHE_SIZE = 64
+"""How many grids :func:`simulate` keeps for reuse (least recently used dropped first)."""
+
+_GRIDS: OrderedDict[tuple, Grid] = OrderedDict()
+
+
+def _grid(
+    network: TransientNetwork,
+    time_step_s: float | None,
+    percentile: float,
+    lump_ratio: float,
+    max_wave_speed_adjustment: float,
+    max_refinement: float,
+) -> Grid:
+    """:func:`choose_grid` for the network, kept for the next call with the same pipes and rules
+    (the grid depends on nothing else)."""
+    length = np.asarray(network.pipe_length_m, dtype=float)
+    speed = np.asarray(network.pipe_wave_speed_m_per_s, dtype=float)
+    key = (
+        length.shape,
+        length.tobytes(),
+        speed.tobytes(),
+        time_step_s,
+        percentile,
+        lump_ratio,
+        max_wave_speed_adjustment,
+        max_refinement,
+    )
+    grid = _GRIDS.get(key)
+    if grid is None:
+        grid = choose_grid(
+            length,
+            speed,
+            time_step_s,
+            percentile=percentile,
+            lump_ratio=lump_ratio,
+            max_wave_speed_adjustment=max_wave_speed_adjustment,
+            max_refinement=max_refinement,
+            names=network.pipe_names,
+        )
+        _GRIDS[key] = grid
+        while len(_GRIDS) > GRID_CACHE_SIZE:
+            _GRIDS.popitem(last=False)
+    else:
+        _GRIDS.move_to_end(key)
+    return grid
 
 
 def _pipe_at_end(lay, end: int, network: TransientNetwork) -> str:
