@@ -78,6 +78,7 @@ def closure_events(
     index = _index(tree, by_pipe)
     events: list[EventResult] = []
     valves: list[tuple[Fixture, str, str]] = []
+    side: str
     for f in building.fixtures:
         if not f.quick_closing:
             continue

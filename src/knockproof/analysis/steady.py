@@ -3,9 +3,10 @@
 Design flow in each pipe comes from the water-supply fixture units downstream of it (IPC Appendix E,
 Table E103.3(3)), flush-valve curve where a flush valve is downstream, never less than the largest
 single fixture flow downstream (one fixture open alone must be served); continuous loads (fixtures
-marked ``continuous``) add their flow on top, as the model code adds continuous demand in gpm. Cold pipes upstream of a water
-heater also carry its hot demand; a fixture drawing both sides through the same pipe counts with its
-*total* fixture units (Table E103.3(2)), as the model code's method does.
+marked ``continuous``) add their flow on top, as the model code adds continuous demand in gpm.
+Cold pipes upstream of a water heater also carry its hot demand; a fixture drawing both sides
+through the same pipe counts with its *total* fixture units (Table E103.3(2)), as the model code's
+method does.
 """
 
 from __future__ import annotations

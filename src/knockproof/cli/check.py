@@ -67,7 +67,7 @@ def command(
     prof = resolve_profile(profile, building.source, building.profile)
     analysis = analyze_tree(tree, simultaneous=simultaneous)
     review = run_review(tree, analysis, prof)
-    checks = []
+    checks: list[object] = []
     if not no_simulation and analysis.events:
         from knockproof.cli.progress import simulate_with_progress
 

@@ -90,7 +90,7 @@ def read_document(path: str | Path) -> tuple[BuildingFile, LineIndex]:
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as e:
-        line = raw[: e.start].count(b"\n") + 1
+        line: int | None = raw[: e.start].count(b"\n") + 1
         raise InputError.single(
             file, "file", "", f"is not UTF-8 text (byte 0x{raw[e.start]:02x})", line
         ) from None
@@ -409,21 +409,21 @@ def load_building(path: str | Path) -> Building:
     pipes = [_with_side(c, p, sides, declared_sides.get(p.id)) for p in pipes]
     fixtures = [_fixture_sides(c, f, sides) for f in fixtures]
     fixed_arrestors: list[Arrestor] = []
-    for i, a in enumerate(arrestors):
-        side = sides.get(a.node)
+    for i, arr in enumerate(arrestors):
+        side = sides.get(arr.node)
         if i in unresolved and side is not None:
-            a = Arrestor(a.id, a.node, side, a.size_class, a.gas_volume_m3, a.line)
-        elif i not in unresolved and side is not None and side != a.side:
+            arr = Arrestor(arr.id, arr.node, side, arr.size_class, arr.gas_volume_m3, arr.line)
+        elif i not in unresolved and side is not None and side != arr.side:
             c.problems.append(
                 Problem(
                     file,
-                    f'arrestor "{a.id}"',
+                    f'arrestor "{arr.id}"',
                     "side",
-                    f"node '{a.node}' is on the {side} side, not {a.side}",
-                    a.line,
+                    f"node '{arr.node}' is on the {side} side, not {arr.side}",
+                    arr.line,
                 )
             )
-        fixed_arrestors.append(a)
+        fixed_arrestors.append(arr)
     _check_unique(c, "pipe", [(p.id, p.line) for p in pipes])
     _check_unique(c, "fixture", [(f.id, f.line) for f in fixtures])
     _check_unique(c, "device", [(dv.id, dv.line) for dv in devices])

@@ -180,7 +180,7 @@ class BuildingFile(_Strict):
     )
 
     building: BuildingSection
-    defaults: Defaults = Field(default_factory=Defaults)
+    defaults: Defaults = Field(default_factory=Defaults)  # type: ignore[arg-type]
     supply: list[SupplyIn] = Field(min_length=1)
     pipe: list[PipeIn] = Field(default_factory=list)
     fixture: list[FixtureIn] = Field(default_factory=list)

@@ -79,7 +79,7 @@ def shown(value: object, most: int = 60) -> str:
 @cache
 def registry() -> pint.UnitRegistry:
     """The one pint registry, with the trade's shorthands defined."""
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    ureg: pint.UnitRegistry = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
     ureg.define("gpm = gallon / minute")
     ureg.define("gph = gallon / hour")
     ureg.define("lps = liter / second")

@@ -20,7 +20,7 @@ from dataclasses import replace
 import networkx as nx
 
 from knockproof.errors import InputError, Problem
-from knockproof.model.building import Building, Pipe
+from knockproof.model.building import Building
 
 
 def build_tree(building: Building) -> nx.DiGraph:
@@ -133,7 +133,7 @@ def build_tree(building: Building) -> nx.DiGraph:
             depth=0,
         )
         for u, v in nx.bfs_edges(und, s.node):
-            p: Pipe = und.edges[u, v]["pipe"]
+            p = und.edges[u, v]["pipe"]
             if p.upstream != u:
                 p = replace(p, upstream=u, downstream=v, rise_m=-p.rise_m)
             tree.add_node(
