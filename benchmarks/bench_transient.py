@@ -17,6 +17,12 @@ It prints
   about 100 pipes, 0.3 s simulated, at the event time step of :mod:`knockproof.transient.events`;
   per call, the Python-side setup (checks, grid, layout), the kernel and the rest, for the first
   call on a new network (nothing cached) and for a repeated one (arrestor sizing reruns an event),
+* the same kernel throughput and triad ratio on the real example tower (``fixtures/tower.toml``):
+  the whole-tree network of one top-floor washer event (``build_event_network`` with a zone of
+  ``TOWER_ZONE_TRAVEL_S``, covering the whole tree), at the time step ``check`` asks for
+  (``event_time_step_s``) and at the solver's default grid; and the aggregate throughput when two
+  processes run that kernel at once (as ``check`` runs events on both cores) beside a two-process
+  triad,
 * the peak resident memory (``resource.getrusage``).
 
 The tower (an invented scenario): a copper riser through ``FLOORS`` floors; on each floor a branch
@@ -41,6 +47,11 @@ UNITS = 4
 DURATION_S = 0.5
 EVENT_UNITS = 6
 EVENT_DURATION_S = 0.3
+TOWER_TOML = os.path.join(
+    os.path.dirname(os.path.abspath(__file__)), "..", "fixtures", "tower.toml"
+)
+TOWER_ZONE_TRAVEL_S = 10.0
+PARALLEL_SECONDS = 2.0
 
 # wave speeds of water in type L copper, rounded (Korteweg with E = 117 GPa; engineering values)
 SIZES = {"2": (0.0513, 1280.0), "1-1/4": (0.0320, 1300.0), "1": (0.0258, 1310.0),
@@ -150,6 +161,101 @@ def time_event(repeats: int, cold: bool):
     return net, best, best_result
 
 
+def example_tower_event():
+    """The example tower's whole-tree network for its last top-floor washer event (cold side), the
+    event's duration [s], its time step [s] and the event id."""
+    from knockproof.analysis.run import analyze_tree
+    from knockproof.model.loader import load_building
+    from knockproof.network import build_tree
+    from knockproof.transient.events import build_event_network, event_time_step_s
+
+    tree = build_tree(load_building(TOWER_TOML))
+    analysis = analyze_tree(tree)
+    washers = [e for e in analysis.events if e.id.endswith("-washer:cold")]
+    event = max(washers, key=lambda e: tree.nodes[e.node]["elevation_m"])
+    net, _, duration = build_event_network(tree, analysis, event, zone_travel_s=TOWER_ZONE_TRAVEL_S)
+    return net, duration, event_time_step_s(event), event.id
+
+
+def _kernel_rate(net, duration, dt, repeats):
+    """Best-of-``repeats`` result of ``simulate`` (kernel time)."""
+    from knockproof.transient.solver import simulate
+
+    simulate(net, duration, time_step_s=dt)
+    runs = [simulate(net, duration, time_step_s=dt) for _ in range(repeats)]
+    return min(runs, key=lambda r: r.stats["kernel_seconds"])
+
+
+def _worker_init(net, duration, dt) -> None:
+    from knockproof.transient.solver import simulate
+
+    simulate(net, duration, time_step_s=dt)  # load the kernel and the layout before timing
+    triad_elements_per_second(1000, 2)
+
+
+def _worker_kernel(net, duration, dt, seconds):
+    """Simulate repeatedly for about ``seconds``: (node updates, kernel s, wall start, wall end)."""
+    from knockproof.transient.solver import simulate
+
+    updates, kern = 0, 0.0
+    start = time.time()
+    while time.time() - start < seconds:
+        r = simulate(net, duration, time_step_s=dt)
+        updates += r.stats["node_updates"]
+        kern += r.stats["kernel_seconds"]
+    return updates, kern, start, time.time()
+
+
+def _worker_triad(n, seconds):
+    """Triads over ``n`` elements for about ``seconds``: (elements, wall start, wall end)."""
+    b = np.random.default_rng(1).random(n)
+    c = np.random.default_rng(2).random(n)
+    a = np.empty(n)
+    done = 0
+    start = time.time()
+    while time.time() - start < seconds:
+        for _ in range(100):
+            np.multiply(c, 1.0001, out=a)
+            np.add(a, b, out=a)
+        done += 100 * n
+    return done, start, time.time()
+
+
+def parallel_rates(net, duration, dt, n):
+    """Aggregate kernel node-updates/s and triad elements/s of two processes at once."""
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(2, initializer=_worker_init, initargs=(net, duration, dt)) as pool:
+        two = [PARALLEL_SECONDS] * 2
+        runs = list(pool.map(_worker_kernel, [net] * 2, [duration] * 2, [dt] * 2, two))
+        tri = list(pool.map(_worker_triad, [n] * 2, two))
+    kernel_wall = sum(u for u, *_ in runs) / (max(r[3] for r in runs) - min(r[2] for r in runs))
+    kernel_own = sum(u / k for u, k, *_ in runs)  # each process's updates over its kernel time
+    triad = sum(e / (t1 - t0) for e, t0, t1 in tri)
+    return kernel_wall, kernel_own, triad
+
+
+def example_tower(repeats: int) -> None:
+    net, duration, event_dt, event_id = example_tower_event()
+    print(f"example tower ({os.path.basename(TOWER_TOML)}), event {event_id}, whole-tree network "
+          f"(zone {TOWER_ZONE_TRAVEL_S:g} s): pipes {net.n_pipes}, {duration:.3f} s simulated")  # fmt: skip
+    for label, dt in (("event time step", event_dt), ("default grid", None)):
+        res = _kernel_rate(net, duration, dt, repeats)
+        st = res.stats
+        rate = st["node_updates"] / st["kernel_seconds"]
+        n = int(st["sections"])
+        triad = max(triad_elements_per_second(n) for _ in range(repeats))
+        target = f"{dt * 1e6:.0f} us target" if dt else "default"
+        print(f"  {label} ({target}): time step {res.time_step_s * 1e6:.1f} us, lumped "
+              f"{len(res.lumped_pipes)}, sections {n}, steps {res.steps}, kernel "
+              f"{st['kernel_seconds'] * 1e3:.2f} ms, {rate / 1e9:.3f} G node-updates/s; triad over "
+              f"{n} elements {triad / 1e9:.3f} G/s; ratio {rate / triad:.2f}  (target >= 0.5)")  # fmt: skip
+        wall, own, triad2 = parallel_rates(net, duration, dt, n)
+        print(f"  {label}, two processes at once: kernel {wall / 1e9:.3f} G node-updates/s "
+              f"aggregate over wall time ({own / 1e9:.3f} summed over kernel time); two-process "
+              f"triad {triad2 / 1e9:.3f} G/s; ratio {wall / triad2:.2f} ({own / triad2:.2f})")  # fmt: skip
+
+
 def main() -> None:
     if "--compile-probe" in sys.argv:
         compile_probe()
@@ -203,6 +309,7 @@ def main() -> None:
               f"{res.time_step_s * 1e6:.0f} us), {label}: {call * 1e3:.2f} ms per call = setup "
               f"{setup * 1e3:.2f} + kernel {kern * 1e3:.2f} ({updates / kern / 1e9:.3f} G/s) + "
               f"rest {(call - setup - kern) * 1e3:.2f} ms; {1 / call:.0f} events/s")  # fmt: skip
+    example_tower(repeats)
     peak_kib = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
     print(f"peak memory (ru_maxrss): {peak_kib / 1024:.1f} MiB")
 

@@ -17,8 +17,10 @@ Neither the pipe order nor the group numbers change a result: every sum at a nod
 pipe ends in the canonical order, and the sums over all pipes or groups run in network order.
 
 The initial state is made exactly steady on the grid: group heads are rebuilt from the reservoir
-heads and the pipes' friction losses, and heads inside a pipe fall by ``R Q|Q|`` per reach (Wylie &
-Streeter 1993, sec. 3.1: steady state as the initial condition).
+heads and the pipes' friction losses on the grid (``N R Q|Q|``, with the friction coefficient the
+kernel uses: ``R/B^2`` rounded to single precision, a relative change below 6e-8), and heads inside
+a pipe fall by ``R Q|Q|`` per reach (Wylie & Streeter 1993, sec. 3.1: steady state as the initial
+condition).
 
 Input checks (each raises :class:`~knockproof.errors.SimulationError` naming the pipe or node):
 finite and positive pipe data, node indices in range, initial heads consistent with the friction
@@ -509,14 +511,25 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     names = net.pipe_names
     kept_names = names if len(kept) == len(names) else tuple(names[p] for p in kept.tolist())
     gup0, gdown0 = group[up[kept]], group[down[kept]]
-    head_g = _steady_group_heads(n_groups, gup0, gdown0, loss[kept], fixed, kept_names)
+    # friction coefficients on the grid: R' = R/B^2 per kept pipe, rounded to single precision
+    # (relative change below 6e-8, far inside the friction factor's own uncertainty) and used so
+    # everywhere, so that the kernel's flat loop reads it as a float32 stream; the group heads are
+    # rebuilt with the same coefficients, so that the initial state is exactly steady on the grid
+    reaches_k = grid.reaches[kept].astype(np.int64)
+    area_kept = area[kept]
+    b_kept = grid.wave_speed_m_per_s[kept] / (g * area_kept)
+    r_kept = friction[kept] * (length[kept] / reaches_k) / (2.0 * g * diameter[kept] * area_kept**2)
+    r_scaled_kept = (r_kept / b_kept**2).astype(np.float32).astype(np.float64)
+    r_coef_kept = r_scaled_kept * b_kept**2
+    grid_loss = reaches_k * r_coef_kept * flow[kept] * np.abs(flow[kept])
+    head_g = _steady_group_heads(n_groups, gup0, gdown0, grid_loss, fixed, kept_names)
     while np.isnan(head_g).any():  # a part of the network without a reservoir: trust given heads
         missing = int(np.flatnonzero(np.isnan(head_g))[0])
         member = int(np.flatnonzero(group == missing)[0])
         extra = {i: float(head_g[i]) for i in np.flatnonzero(~np.isnan(head_g))}
         extra[missing] = float(given_head[member])
         head_g = _steady_group_heads(
-            n_groups, gup0, gdown0, loss[kept], {**extra, **fixed}, kept_names
+            n_groups, gup0, gdown0, grid_loss, {**extra, **fixed}, kept_names
         )
 
     # layout order of the pipes; final group numbers (see the module docstring)
@@ -580,10 +593,9 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     gup = group[up[lay_pipe]]
     a_used = grid.wave_speed_m_per_s[lay_pipe]
     area_k = area[lay_pipe]
-    dx = length[lay_pipe] / reaches
     b_coef = a_used / (g * area_k)
-    r_coef = friction[lay_pipe] * dx / (2.0 * g * diameter[lay_pipe] * area_k**2)
-    r_scaled = r_coef / b_coef**2
+    r_coef = r_coef_kept[order]  # rounded as above
+    r_scaled = r_scaled_kept[order]
     counts = reaches + 1
     owner = np.repeat(np.arange(n_kept), counts)
     j = np.arange(total) - offset[owner]
@@ -597,7 +609,7 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     section_r = r_scaled[owner]
     friction_term = section_r * q * np.abs(q)
     state0 = np.concatenate([head + q - friction_term, head - q + friction_term])
-    r_marked = section_r.copy()  # for the kernel's flat loop (kernel._flat_block)
+    r_marked = section_r.astype(np.float32)  # for the kernel's flat loop (kernel._flat_block)
     r_marked[offset] = -1.0  # kernel.PIPE_END
     r_marked[offset + reaches] = -1.0
 

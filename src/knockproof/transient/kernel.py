@@ -283,28 +283,32 @@ def _flat_block(A, B, An, Bn, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover
     b_out = Bn[k0:k1]
     r = sr[k0:k1]
     nbad = 0
+    # the outgoing characteristics are C_P - R' q|q| and C_M + R' q|q| (H + q = C_P, H - q = C_M);
+    # the head is checked as C_P + C_M = 2 H against twice the bounds (exact scaling)
+    lo = 2.0 * thr
+    hi = 2.0 * HEAD_LIMIT_M
     if write_h:
         h_out = Hf[k0:k1]
         for i in range(m):
             cp = a_in[i]
             cm = b_in[i]
-            h = 0.5 * (cp + cm)
             q = 0.5 * (cp - cm)
-            f = r[i] * q * abs(q)
-            a_out[i] = h + q - f
-            b_out[i] = h - q + f
-            h_out[i] = h
-            nbad += (r[i] >= 0.0) & (not (h >= thr and h <= HEAD_LIMIT_M))
+            f = np.float64(r[i]) * q * abs(q)
+            a_out[i] = cp - f
+            b_out[i] = cm + f
+            h_out[i] = 0.5 * (cp + cm)
+            s = cp + cm
+            nbad += (r[i] >= 0.0) & (not (s >= lo and s <= hi))
     else:
         for i in range(m):
             cp = a_in[i]
             cm = b_in[i]
-            h = 0.5 * (cp + cm)
             q = 0.5 * (cp - cm)
-            f = r[i] * q * abs(q)
-            a_out[i] = h + q - f
-            b_out[i] = h - q + f
-            nbad += (r[i] >= 0.0) & (not (h >= thr and h <= HEAD_LIMIT_M))
+            f = np.float64(r[i]) * q * abs(q)
+            a_out[i] = cp - f
+            b_out[i] = cm + f
+            s = cp + cm
+            nbad += (r[i] >= 0.0) & (not (s >= lo and s <= hi))
     return nbad
 
 
@@ -321,30 +325,21 @@ def _end_nodes(
     no negative-index checks."""
     one = np.uint64(1)
     two = np.uint64(2)
+    # a dead end: no flow, so H = C_P (or C_M) exactly and it sends back what it receives
     sec = esec[d0:d1]
-    w = einv[d0:d1]
-    r = er[d0:d1]
-    g = gbs[d0:d1]
     h = gh[d0:d1]
     for i in range(d1 - d0):
         k = sec[i]
         ce = A[k - one]
-        head = (0.0 + ce * w[i]) * g[i]
-        q = ce - head
-        Bn[k] = head - q + r[i] * q * abs(q)
-        h[i] = head
+        Bn[k] = ce
+        h[i] = ce
     sec = esec[m0:m1]
-    w = einv[m0:m1]
-    r = er[m0:m1]
-    g = gbs[m0:m1]
     h = gh[m0:m1]
     for i in range(m1 - m0):
         k = sec[i]
         ce = B[k + one]
-        head = (0.0 + ce * w[i]) * g[i]
-        q = -(ce - head)
-        An[k] = head + q - r[i] * q * abs(q)
-        h[i] = head
+        An[k] = ce
+        h[i] = ce
     e0 = 2 * j0 - n_dead
     e1 = 2 * j1 - n_dead
     sec = esec[e0:e1]
@@ -365,24 +360,23 @@ def _end_nodes(
 
 
 @njit(cache=True, _nrt=False)
-def _other_nodes(S, Sn, g0, g1, eptr, ein, eout, esgn, er, einv, gbs, gh, cbuf):  # pragma: no cover
+def _other_nodes(S, Sn, g0, g1, eptr, ein, eout, esgn, er, einv, gbs, gh):  # pragma: no cover
     """The other plain junctions ``g0 .. g1-1`` (pipe ends in a canonical order), from the old
     state ``S`` (``C+`` of every section, then ``C-``) into the new, ``Sn``: pipe end ``e`` brings
-    ``S[ein[e]]`` and its node sends back ``Sn[eout[e]]``."""
+    ``S[ein[e]]`` and its node sends back ``Sn[eout[e]]``. ``eptr``, ``ein`` and ``eout`` are
+    unsigned (no negative-index checks); what a pipe end brings is read again (in cache) rather
+    than kept in a buffer."""
     for gi in range(g0, g1):
-        e0 = np.uint64(eptr[gi])
-        d = np.uint64(eptr[gi + 1]) - e0
+        e0 = eptr[gi]
+        e1 = eptr[gi + 1]
         scb = 0.0
-        for j in range(d):
-            ce = S[ein[e0 + j]]
-            cbuf[j] = ce
-            scb += ce * einv[e0 + j]
+        for e in range(e0, e1):
+            scb += S[ein[e]] * einv[e]
         head = scb * gbs[gi]
         gh[gi] = head
-        for j in range(d):
-            e = e0 + j
+        for e in range(e0, e1):
             s = esgn[e]
-            q = s * (cbuf[j] - head)
+            q = s * (S[ein[e]] - head)
             Sn[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
 
 
@@ -619,7 +613,6 @@ def run(
     B = S[ns:]
     An = Sn[:ns]
     Bn = Sn[ns:]
-    cbuf = np.empty(max(1, np.max(eptr[1:] - eptr[:-1])))
     Vc = np.zeros(ns)
     Qcu = np.zeros(ns)
     Qcd = np.zeros(ns)
@@ -649,6 +642,7 @@ def run(
     n_active = 0
     n_todo = 0
     esec_u = esec.astype(np.uint64)  # unsigned: see _end_nodes
+    eptr_u = eptr.astype(np.uint64)  # unsigned: see _other_nodes
     n_dead = node_classes[1]
     stats[ST_FIRST_COLLAPSE] = -1
     for gi in range(n_groups):
@@ -693,7 +687,7 @@ def run(
                 Sn,
                 block_nodes[3, b],
                 block_nodes[3, b + 1],
-                eptr,
+                eptr_u,
                 ein,
                 eout,
                 esgn,
@@ -701,7 +695,6 @@ def run(
                 einv,
                 gbs,
                 gh,
-                cbuf,
             )
         # 2. heads checked; the general solver for those that fail and for the reservoirs, valves
         # and arrestors

@@ -1,0 +1,56 @@
+"""The kernel's simplified node and section updates keep a flowing network's steady state, and a
+dead end reflects a wave fully (its head is the arriving characteristic, no flow)."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from knockproof.transient.build import OutletSpec, PipeSpec, tree_network
+from knockproof.transient.solver import simulate
+
+
+def _branching(start_s: float):
+    """A supply main, a tee to a flowing run ending in a valve and to a dead-end branch."""
+    pipes = [
+        PipeSpec("main", "S", "T", 20.0, 0.026, 1310.0, 0.022),
+        PipeSpec("run", "T", "V", 12.0, 0.020, 1320.0, 0.022),
+        PipeSpec("branch", "T", "D", 8.0, 0.020, 1320.0, 0.022),
+        PipeSpec("stub", "D", "E", 3.0, 0.014, 1340.0, 0.022),
+    ]
+    outlets = [OutletSpec("V", 3.0e-4, 0.0, "instant", start_time_s=start_s)]
+    return tree_network(pipes, "S", 50.0, {"S": 0.0, "T": 0.0, "V": 0.0, "D": 0.0, "E": 0.0},
+                        outlets)  # fmt: skip
+
+
+def test_steady_state_holds_with_friction():
+    # the valve closes only after the run: the friction losses on the grid (single-precision
+    # coefficients, used so in the initial state too) keep every head where it started
+    net = _branching(start_s=1.0)
+    res = simulate(net, 0.2, time_step_s=1.0e-4)
+    head0 = np.asarray(net.node_initial_head_m, float)
+    np.testing.assert_allclose(res.node_max_head_m, res.node_min_head_m, rtol=0, atol=1e-9)
+    np.testing.assert_allclose(res.node_max_head_m, head0, rtol=0, atol=1e-6)
+
+
+def test_dead_end_doubles_the_arriving_step():
+    # no friction, instant closure: the step that reaches the dead end E is doubled there
+    pipes = [
+        PipeSpec("main", "S", "T", 32.5, 0.026, 1300.0, 0.0),
+        PipeSpec("run", "T", "V", 13.0, 0.026, 1300.0, 0.0),
+        PipeSpec("branch", "T", "E", 6.5, 0.026, 1300.0, 0.0),
+    ]
+    net = tree_network(pipes, "S", 50.0, {}, [OutletSpec("V", 5.0e-4, 0.0, "instant")])
+    dt = 6.5 / 1300.0 / 10
+    names = list(net.node_names)
+    v, e = names.index("V"), names.index("E")
+    res = simulate(net, 0.02, time_step_s=dt, record_nodes=[v, e], cavitation=False)
+    h0 = float(np.asarray(net.node_initial_head_m)[v])
+    rise_valve = res.traces_pressure_pa[v] - res.traces_pressure_pa[v][0]
+    rise_end = res.traces_pressure_pa[e] - res.traces_pressure_pa[e][0]
+    step = rise_valve[int(round(0.001 / dt))]  # the Joukowsky step at the valve, before reflections
+    # junction T: three equal pipes, each carries 2/3 of the arriving step on; E doubles it
+    arrive = int(round((13.0 + 6.5) / 1300.0 / dt)) + 2
+    assert h0 > 0
+    assert res.largest_wave_speed_adjustment < 1e-12
+    np.testing.assert_allclose(rise_end[arrive], 2.0 * (2.0 / 3.0) * step, rtol=1e-9)
+    assert abs(rise_end[arrive - 4]) < 1e-6 * step  # not arrived yet
