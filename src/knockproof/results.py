@@ -6,10 +6,21 @@ read-only helpers; reports read them and never compute physics.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from typing import Literal
 
 Closure = Literal["rapid", "slow"]
+
+
+def json_number(x: float | None, digits: int = 6) -> float | None:
+    """A float as written to JSON: ``digits`` significant figures (stable output, the same input
+    giving byte-identical files); None stays None; a non-finite number is refused, never written."""
+    if x is None:
+        return None
+    if not math.isfinite(x):
+        raise ValueError("refusing to write a non-finite number to JSON")
+    return 0.0 if x == 0 else float(f"{x:.{digits}g}")
 
 
 @dataclass(frozen=True)

@@ -3,23 +3,12 @@
 from __future__ import annotations
 
 import json
-import math
 from typing import Any
 
 from knockproof import __version__
 from knockproof.report.cautions import CAUTION
 from knockproof.results import Analysis, EventResult
-
-
-def _num(x: float | None, digits: int = 6) -> float | None:
-    """Round to ``digits`` significant figures (stable output); None stays None."""
-    if x is None:
-        return None
-    if not math.isfinite(x):
-        raise ValueError("refusing to write a non-finite number to JSON")
-    if x == 0:
-        return 0.0
-    return float(f"{x:.{digits}g}")
+from knockproof.results import json_number as _num
 
 
 def event_to_json(e: EventResult) -> dict[str, Any]:

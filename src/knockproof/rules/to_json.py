@@ -8,21 +8,12 @@ a unit has it in its key name (SI); ``measured`` and ``limit`` name theirs in ``
 
 from __future__ import annotations
 
-import math
 from typing import Any
 
+from knockproof.results import json_number as _num
 from knockproof.rules.engine import Finding
 from knockproof.rules.review import Review, ValveVerdict
 from knockproof.rules.schedule import ArrestorRecommendation
-
-
-def _num(x: float | None) -> float | None:
-    """Six significant figures (stable output); None stays None."""
-    if x is None:
-        return None
-    if not math.isfinite(x):
-        raise ValueError("refusing to write a non-finite number to JSON")
-    return 0.0 if x == 0 else float(f"{x:.6g}")
 
 
 def finding_to_json(f: Finding) -> dict[str, Any]:
@@ -63,9 +54,15 @@ def arrestor_to_json(a: ArrestorRecommendation) -> dict[str, Any]:
 
 def valve_to_json(v: ValveVerdict) -> dict[str, Any]:
     return {
-        "valve": v.valve, "fixture": v.fixture, "side": v.side, "node": v.node,
-        "verdict": v.verdict, "status": v.status, "arrestor": v.arrestor,
-        "recommendation": v.recommendation, "description": v.description,
+        "valve": v.valve,
+        "fixture": v.fixture,
+        "side": v.side,
+        "node": v.node,
+        "verdict": v.verdict,
+        "status": v.status,
+        "arrestor": v.arrestor,
+        "recommendation": v.recommendation,
+        "description": v.description,
     }
 
 

@@ -115,11 +115,16 @@ class _Cache:
     adjacency: dict  # node -> list of (neighbour, (u, v), travel time [s])
 
 
+#: The last few (tree, analysis) pairs' lookups, kept here rather than on the graph so that a tree
+#: sent to a worker process does not carry a second copy of the analysis with it.
+_CACHES: dict[tuple[int, int], tuple[nx.DiGraph, Analysis, _Cache]] = {}
+
+
 def _cache(tree: nx.DiGraph, analysis: Analysis) -> _Cache:
-    key = id(analysis)
-    found = tree.graph.get("_transient_cache")
-    if found is not None and found[0] == key:
-        return found[1]
+    key = (id(tree), id(analysis))
+    found = _CACHES.get(key)
+    if found is not None and found[0] is tree and found[1] is analysis:
+        return found[2]
     pipes = {p.id: p for p in analysis.pipes}
     adjacency: dict[str, list] = {n: [] for n in tree.nodes}
     for u, v, p in tree.edges(data="pipe"):
@@ -132,7 +137,9 @@ def _cache(tree: nx.DiGraph, analysis: Analysis) -> _Cache:
         {n.id: n for n in analysis.nodes},
         adjacency,
     )
-    tree.graph["_transient_cache"] = (key, c, analysis)
+    if len(_CACHES) >= 4:
+        _CACHES.pop(next(iter(_CACHES)))
+    _CACHES[key] = (tree, analysis, c)
     return c
 
 
