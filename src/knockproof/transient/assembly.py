@@ -8,11 +8,13 @@ nodes, taken in order of their sections, run forward through memory. Consecutive
 of about :data:`BLOCK_SECTIONS` sections, which the kernel updates one at a time.
 
 Nodes joined by lumped pipes are merged into one *group* (a union-find); each group has a list of
-pipe ends (CSR: ``end_ptr``), in a canonical order (by pipe name), of valves (``valve_ptr``) and at
-most one arrestor. Groups are numbered: the plain liquid junctions first, in four classes (dead ends
-at a pipe's last section; at its first; two-pipe junctions whose two pipe-end sections are
-neighbours; the others), within a class by the last block holding one of their sections and then
-by section; then the groups holding a reservoir, valve or arrestor, in the order of their degree.
+pipe ends (CSR: ``end_ptr``), in a canonical order (the arriving pipes' ends first, then the leaving
+ones', each by pipe name), of valves (``valve_ptr``) and at most one arrestor. Groups are numbered:
+the plain liquid junctions first, in six classes (dead ends at a pipe's last section; at its first;
+two-pipe junctions whose two pipe-end sections are neighbours; junctions of one arriving and two
+leaving pipes; of one arriving and three leaving; the others), within a class by their number of
+pipe ends and then by their last section; then the groups holding a reservoir, valve or arrestor,
+in the order of their degree.
 Neither the pipe order nor the group numbers change a result: every sum at a node runs over its
 pipe ends in the canonical order, and the sums over all pipes or groups run in network order.
 
@@ -65,7 +67,7 @@ class Layout:
     # sections, in layout order
     section_count: int
     state0: np.ndarray  # C+ = H + q - R' q|q| of every section, then C- = H - q + R' q|q|
-    section_r_marked: np.ndarray  # R' = R/B^2, but kernel.PIPE_END at the pipes' end sections
+    section_r_marked: np.ndarray  # R' = R/B^2, sign turned at the pipes' end sections
     # pipes (only the unlumped ones, in layout order)
     pipe_index: np.ndarray
     pipe_rank: np.ndarray  # layout index of each unlumped pipe, in network order
@@ -86,15 +88,11 @@ class Layout:
     group_head: np.ndarray
     group_bs: np.ndarray
     plain_count: int
-    node_classes: np.ndarray  # where the 2nd, 3rd and 4th classes of plain junctions start
-    block_nodes: np.ndarray  # [class, block]: first group of the class done with the block
+    node_classes: np.ndarray  # where the 2nd to 6th classes of plain junctions start
     end_ptr: np.ndarray
     end_section: np.ndarray
     end_sign_f: np.ndarray  # +1 at a pipe's last section, -1 at its first
-    end_r_scaled: np.ndarray
     end_inv_b: np.ndarray
-    end_in: np.ndarray  # where in state0 the characteristic the node receives is
-    end_out: np.ndarray  # where the one it sends goes
     # valves
     valve_ptr: np.ndarray
     valve_order: np.ndarray
@@ -542,7 +540,6 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     offset[1:] = np.cumsum(reaches + 1)[:-1]
     total = int((reaches + 1).sum())
     block_pipe = _blocks(offset)
-    block_of = np.repeat(np.arange(len(block_pipe) - 1), np.diff(block_pipe))
     # pipe ends (pipe in layout order, -1 at its first section, +1 at its last), by group
     e_pipe = np.repeat(np.arange(n_kept), 2)
     e_sign = np.tile(np.array([-1, 1], dtype=np.int64), n_kept)
@@ -554,18 +551,22 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     two = by_group[(first_end + 1).clip(max=2 * n_kept - 1)]
     plus = np.where(e_sign[one] > 0, one, two)
     minus = np.where(e_sign[one] > 0, two, one)
-    kind = np.full(n_groups, 3, dtype=np.int64)  # other plain junctions
+    arriving = np.bincount(e_group[e_sign > 0], minlength=n_groups)
+    kind = np.full(n_groups, 5, dtype=np.int64)  # other plain junctions
     kind[(degree == 1) & (e_sign[one] > 0)] = 0  # dead end at a pipe's last section
     kind[(degree == 1) & (e_sign[one] < 0)] = 1  # dead end at a pipe's first section
     kind[
         (degree == 2) & (e_sign[one] != e_sign[two]) & (e_section[minus] == e_section[plus] + 1)
     ] = 2  # two-pipe junction whose two pipe-end sections are neighbours
-    kind[special] = 4
-    # each plain group is done with the last block holding one of its sections, then by section
+    kind[(degree == 3) & (arriving == 1)] = 3  # one pipe arriving, two leaving
+    kind[(degree == 4) & (arriving == 1)] = 4  # one pipe arriving, three leaving
+    kind[special] = 6
+    # within a class, plain groups by their number of pipe ends (so that the kernel's loops over
+    # them run the same number of times from one group to the next), then in the order of their
+    # last section (memory order)
     last_section = np.zeros(n_groups, dtype=np.int64)
     last_section[e_group[by_group]] = e_section[by_group]  # ends of a group: sections increase
-    last_block = block_of[np.searchsorted(offset, last_section, side="right") - 1]
-    second = last_block * (total + 1) + last_section
+    second = degree * (total + 1) + last_section
     second[special] = np.arange(n_groups)[special]
     renumber = np.empty(n_groups, dtype=np.int64)
     renumber[np.lexsort((second, kind))] = np.arange(n_groups)
@@ -574,15 +575,8 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     degree = degree[old_of_new]
     head_g = head_g[old_of_new]
     kind = kind[old_of_new]
-    last_block = last_block[old_of_new]
     fixed = {int(renumber[k]): h for k, h in fixed.items()}
-    n_blocks = len(block_pipe) - 1
-    block_nodes = np.zeros((4, n_blocks + 1), dtype=np.int64)
-    for c in range(4):
-        start = int(np.searchsorted(kind, c))
-        members = last_block[start : int(np.searchsorted(kind, c + 1))]
-        block_nodes[c] = start + np.searchsorted(members, np.arange(n_blocks + 1))
-    node_classes = np.searchsorted(kind, [1, 2, 3]).astype(np.int64)
+    node_classes = np.searchsorted(kind, [1, 2, 3, 4, 5]).astype(np.int64)
     group_kind = np.zeros(n_groups, dtype=np.int64)
     fixed_head = np.zeros(n_groups)
     for gi, h in fixed.items():
@@ -610,21 +604,19 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     friction_term = section_r * q * np.abs(q)
     state0 = np.concatenate([head + q - friction_term, head - q + friction_term])
     r_marked = section_r.astype(np.float32)  # for the kernel's flat loop (kernel._flat_block)
-    r_marked[offset] = -1.0  # kernel.PIPE_END
-    r_marked[offset + reaches] = -1.0
+    r_marked[offset] = -r_marked[offset]  # a pipe's end sections: sign turned
+    r_marked[offset + reaches] = -r_marked[offset + reaches]
 
-    # groups: pipe ends, in a canonical order at each node (by pipe name, then upstream end first;
-    # a sum of two terms does not depend on their order, so at the two-pipe junctions of class 2
-    # the arriving pipe's end comes first, as the kernel expects)
+    # groups: pipe ends, in a canonical order at each node: the arriving pipes' ends (their last
+    # sections) first, then the leaving ones', each by pipe name (the kernel's written-out
+    # junctions of classes 2 to 4 expect the arriving end first)
     name_rank = np.empty(n_kept, dtype=np.int64)
     name_rank[sorted(range(n_kept), key=kept_names.__getitem__)] = np.arange(n_kept)
     e_group = group[np.where(e_sign < 0, up[lay_pipe][e_pipe], down[lay_pipe][e_pipe])]
     kept_pos = order[e_pipe]
-    key = np.where(kind[e_group] == 2, -e_sign, name_rank[kept_pos])
-    e_pos = np.lexsort((kept_pos, e_sign, key, e_group))
+    e_pos = np.lexsort((kept_pos, name_rank[kept_pos], -e_sign, e_group))
     e_pipe, e_sign, e_group = e_pipe[e_pos], e_sign[e_pos], e_group[e_pos]
     end_section = np.where(e_sign < 0, offset[e_pipe], offset[e_pipe] + reaches[e_pipe])
-    end_neighbour = end_section - e_sign
     end_ptr = np.zeros(n_groups + 1, dtype=np.int64)
     np.add.at(end_ptr, e_group + 1, 1)
     end_ptr = np.cumsum(end_ptr)
@@ -699,14 +691,10 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
         group_bs=group_bs,
         plain_count=n_plain,
         node_classes=node_classes,
-        block_nodes=block_nodes,
         end_ptr=end_ptr,
         end_section=end_section,
-        end_r_scaled=r_scaled[e_pipe],
         end_inv_b=end_inv_b,
         end_sign_f=e_sign.astype(float),
-        end_in=(end_neighbour + np.where(e_sign < 0, total, 0)).astype(np.uint64),
-        end_out=(end_section + np.where(e_sign > 0, total, 0)).astype(np.uint64),
         valve_ptr=valve_ptr.astype(np.int64),
         valve_order=np.array(order_v, dtype=np.int64),
         valve_flow0=valve_flow,

@@ -261,26 +261,23 @@ def _special_node(
 NODE_CHUNK = 64
 """The plain junctions are checked against their thresholds in chunks of this many."""
 
-PIPE_END = -1.0
-"""Stands for the friction coefficient of a pipe's first and last sections in the array the flat
-loop reads (see :func:`_flat_block`), so that they are not counted; the nodes use the pipe's
-own."""
+REBASE_STEPS = 4096
+"""The state drifts one place per step through its storage (see the module docstring); it is moved
+back to its starting place every ``max(REBASE_STEPS, sections)`` steps."""
 
 
 @njit(cache=True, _nrt=False)
-def _flat_block(A, B, An, Bn, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - compiled
-    """Liquid update of sections ``k0 .. k1-1`` from the old state ``A``, ``B`` into ``An``,
-    ``Bn``; returns how many interior sections fall below ``thr`` or beyond
-    :data:`HEAD_LIMIT_M` or are not finite. The pipes' first and last sections (``sr`` =
-    :data:`PIPE_END`) get a value too, which the nodes overwrite where it is read."""
+def _flat_block(Av, Bv, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - compiled
+    """Update sections ``k0 .. k1-1`` in place: ``Av[k]``, ``Bv[k]`` hold the characteristics
+    arriving at section ``k`` (``C_P``, ``C_M``) and receive the ones it sends (``C+``, ``C-``).
+    Returns how many interior sections (``sr >= 0``; a pipe's end sections carry ``-R'``) fall
+    below ``thr`` or beyond :data:`HEAD_LIMIT_M` or are not finite."""
     m = k1 - k0
     if m <= 0:
         return 0
     # views indexed from 0: no negative index, and the compiler vectorises the loop
-    a_in = A[k0 - 1 : k1 - 1]
-    b_in = B[k0 + 1 : k1 + 1]
-    a_out = An[k0:k1]
-    b_out = Bn[k0:k1]
+    a = Av[k0:k1]
+    b = Bv[k0:k1]
     r = sr[k0:k1]
     nbad = 0
     # the outgoing characteristics are C_P - R' q|q| and C_M + R' q|q| (H + q = C_P, H - q = C_M);
@@ -290,94 +287,121 @@ def _flat_block(A, B, An, Bn, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover
     if write_h:
         h_out = Hf[k0:k1]
         for i in range(m):
-            cp = a_in[i]
-            cm = b_in[i]
+            cp = a[i]
+            cm = b[i]
+            ri = r[i]
             q = 0.5 * (cp - cm)
-            f = np.float64(r[i]) * q * abs(q)
-            a_out[i] = cp - f
-            b_out[i] = cm + f
+            f = np.float64(abs(ri)) * q * abs(q)
+            a[i] = cp - f
+            b[i] = cm + f
             h_out[i] = 0.5 * (cp + cm)
             s = cp + cm
-            nbad += (r[i] >= 0.0) & (not (s >= lo and s <= hi))
+            nbad += (ri >= 0.0) & (not (s >= lo and s <= hi))
     else:
         for i in range(m):
-            cp = a_in[i]
-            cm = b_in[i]
+            cp = a[i]
+            cm = b[i]
+            ri = r[i]
             q = 0.5 * (cp - cm)
-            f = np.float64(r[i]) * q * abs(q)
-            a_out[i] = cp - f
-            b_out[i] = cm + f
+            f = np.float64(abs(ri)) * q * abs(q)
+            a[i] = cp - f
+            b[i] = cm + f
             s = cp + cm
-            nbad += (r[i] >= 0.0) & (not (s >= lo and s <= hi))
+            nbad += (ri >= 0.0) & (not (s >= lo and s <= hi))
     return nbad
 
 
 @njit(cache=True, _nrt=False)
-def _end_nodes(
-    A, B, An, Bn, d0, d1, m0, m1, j0, j1, n_dead, esec, er, einv, gbs, gh
-):  # pragma: no cover - compiled
-    """Dead ends at the last section of their pipe (groups ``d0 .. d1-1``), at the first (``m0 ..
-    m1-1``), and two-pipe junctions where a pipe's last section is followed by the next pipe's
-    first (``j0 .. j1-1``): heads into ``gh``, and what they send into their pipes into ``An``,
-    ``Bn``, from the old state ``A``, ``B``. The dead ends are groups ``0 .. n_dead-1`` with one
-    pipe end each (end number = group number); the two-pipe junctions follow with two each, the
-    arriving pipe's first. Loops over views from 0 with unsigned section numbers: the compiler adds
-    no negative-index checks."""
+def _end_nodes(Av, Bv, n_dead_last, n_dead, n_pair, esec, einv, gbs, gh):  # pragma: no cover
+    """Dead ends at the last section of their pipe (groups ``0 .. n_dead_last-1``), at the first
+    (``.. n_dead-1``), and two-pipe junctions where a pipe's last section is followed by the next
+    pipe's first (``.. n_pair-1``): heads into ``gh``, ghosts ``2 H - C`` into the pipe-end sections
+    (see the module docstring). The dead ends have one pipe end each (end number = group number);
+    the two-pipe junctions follow with two each, the arriving pipe's first. Unsigned section
+    numbers: the compiler adds no negative-index checks."""
     one = np.uint64(1)
-    two = np.uint64(2)
-    # a dead end: no flow, so H = C_P (or C_M) exactly and it sends back what it receives
-    sec = esec[d0:d1]
-    h = gh[d0:d1]
-    for i in range(d1 - d0):
-        k = sec[i]
-        ce = A[k - one]
-        Bn[k] = ce
-        h[i] = ce
-    sec = esec[m0:m1]
-    h = gh[m0:m1]
-    for i in range(m1 - m0):
-        k = sec[i]
-        ce = B[k + one]
-        An[k] = ce
-        h[i] = ce
-    e0 = 2 * j0 - n_dead
-    e1 = 2 * j1 - n_dead
-    sec = esec[e0:e1]
-    w = einv[e0:e1]
-    r = er[e0:e1]
-    g = gbs[j0:j1]
-    h = gh[j0:j1]
-    for i in range(j1 - j0):
-        k = sec[2 * i]
-        ca = A[k - one]
-        cb = B[k + two]
-        head = ((0.0 + ca * w[2 * i]) + cb * w[2 * i + 1]) * g[i]
-        q = ca - head
-        Bn[k] = head - q + r[2 * i] * q * abs(q)
-        q = -(cb - head)
-        An[k + one] = head + q - r[2 * i + 1] * q * abs(q)
-        h[i] = head
+    # a dead end: no flow, so H = C_P (or C_M) and its ghost 2 H - C_P is C_P itself
+    for i in range(n_dead_last):
+        k = esec[i]
+        ce = Av[k]
+        Bv[k] = ce
+        gh[i] = ce
+    for i in range(n_dead_last, n_dead):
+        k = esec[i]
+        ce = Bv[k]
+        Av[k] = ce
+        gh[i] = ce
+    for i in range(n_dead, n_pair):
+        e = 2 * i - n_dead
+        k = esec[e]
+        ca = Av[k]
+        cb = Bv[k + one]
+        head = ((0.0 + ca * einv[e]) + cb * einv[e + 1]) * gbs[i]
+        Bv[k] = 2.0 * head - ca
+        Av[k + one] = 2.0 * head - cb
+        gh[i] = head
 
 
 @njit(cache=True, _nrt=False)
-def _other_nodes(S, Sn, g0, g1, eptr, ein, eout, esgn, er, einv, gbs, gh):  # pragma: no cover
-    """The other plain junctions ``g0 .. g1-1`` (pipe ends in a canonical order), from the old
-    state ``S`` (``C+`` of every section, then ``C-``) into the new, ``Sn``: pipe end ``e`` brings
-    ``S[ein[e]]`` and its node sends back ``Sn[eout[e]]``. ``eptr``, ``ein`` and ``eout`` are
-    unsigned (no negative-index checks); what a pipe end brings is read again (in cache) rather
-    than kept in a buffer."""
+def _junctions(Av, Bv, g0, g1, g2, eptr, esec, einv, gbs, gh):  # pragma: no cover - compiled
+    """Junctions of one arriving and two leaving pipes (groups ``g0 .. g1-1``) and of one arriving
+    and three leaving (``g1 .. g2-1``), written out: heads into ``gh``, ghosts ``2 H - C`` into the
+    pipe-end sections. Their pipe ends are consecutive, the arriving one first (the canonical
+    order)."""
+    base = eptr[g0]
+    for i in range(g1 - g0):
+        e = base + 3 * i
+        k0 = esec[e]
+        k1 = esec[e + 1]
+        k2 = esec[e + 2]
+        c0 = Av[k0]
+        c1 = Bv[k1]
+        c2 = Bv[k2]
+        head = (((0.0 + c0 * einv[e]) + c1 * einv[e + 1]) + c2 * einv[e + 2]) * gbs[g0 + i]
+        gh[g0 + i] = head
+        two_h = 2.0 * head
+        Bv[k0] = two_h - c0
+        Av[k1] = two_h - c1
+        Av[k2] = two_h - c2
+    base = eptr[g1]
+    for i in range(g2 - g1):
+        e = base + 4 * i
+        k0 = esec[e]
+        k1 = esec[e + 1]
+        k2 = esec[e + 2]
+        k3 = esec[e + 3]
+        c0 = Av[k0]
+        c1 = Bv[k1]
+        c2 = Bv[k2]
+        c3 = Bv[k3]
+        head = (
+            (((0.0 + c0 * einv[e]) + c1 * einv[e + 1]) + c2 * einv[e + 2]) + c3 * einv[e + 3]
+        ) * gbs[g1 + i]
+        gh[g1 + i] = head
+        two_h = 2.0 * head
+        Bv[k0] = two_h - c0
+        Av[k1] = two_h - c1
+        Av[k2] = two_h - c2
+        Av[k3] = two_h - c3
+
+
+@njit(cache=True, _nrt=False)
+def _other_nodes(S, g0, g1, eptr, ein0, eout0, edir, j, einv, gbs, gh):  # pragma: no cover
+    """The other plain junctions ``g0 .. g1-1`` (pipe ends in the canonical order) on the storage
+    ``S`` at step ``j`` of the current placement: pipe end ``e`` brings ``S[ein0[e] + edir[e] j]``
+    and receives the ghost ``2 H - C`` at ``S[eout0[e] - edir[e] j]``."""
     for gi in range(g0, g1):
         e0 = eptr[gi]
         e1 = eptr[gi + 1]
         scb = 0.0
         for e in range(e0, e1):
-            scb += S[ein[e]] * einv[e]
+            scb += S[np.uint64(ein0[e] + edir[e] * j)] * einv[e]
         head = scb * gbs[gi]
         gh[gi] = head
+        two_h = 2.0 * head
         for e in range(e0, e1):
-            s = esgn[e]
-            q = s * (S[ein[e]] - head)
-            Sn[eout[e]] = head - s * q + s * (er[e] * q * abs(q))
+            d = edir[e] * j
+            S[np.uint64(eout0[e] - d)] = two_h - S[np.uint64(ein0[e] + d)]
 
 
 @njit(cache=True, _nrt=False)
@@ -409,12 +433,25 @@ def _check_plain(gh, gthr, gmax, gmin, n_plain, chunk_bad):  # pragma: no cover 
 
 
 @njit(cache=True, _nrt=False)
-def _flagged(p, A, B, off, nre, hv0, dhv, cav_on):  # pragma: no cover - compiled
-    """Whether an interior section of liquid pipe p falls below its vapour head (or beyond the
-    limit, or is not finite) in this step (from the old state ``A``, ``B``)."""
+def _arrived(a, b, r):  # pragma: no cover - compiled
+    """The characteristics ``(C_P, C_M)`` a liquid section received, from the two it sent, ``a =
+    C_P - R' q|q|`` and ``b = C_M + R' q|q|`` with ``q = (C_P - C_M)/2``: ``a + b = C_P + C_M``, and
+    ``e = (a - b)/2 = q - R' q|q|`` gives ``q = 2 e/(1 + sqrt(1 - 4 R'|e|))`` (the root that tends
+    to ``e`` as ``R'`` goes to 0; ``4 R'|e|`` stays far below 1 in building piping)."""
+    e = 0.5 * (a - b)
+    q = 2.0 * e / (1.0 + math.sqrt(max(1.0 - 4.0 * r * abs(e), 0.0)))
+    h = 0.5 * (a + b)
+    return h + q, h - q
+
+
+@njit(cache=True, _nrt=False)
+def _flagged(p, Av, Bv, off, nre, hv0, dhv, cav_on):  # pragma: no cover - compiled
+    """Whether an interior section of liquid pipe p fell below its vapour head (or beyond the limit,
+    or is not finite) in this step; after the flat update, ``Av[k] + Bv[k]`` is still ``C_P +
+    C_M``."""
     o = off[p]
     for k in range(o + 1, o + nre[p]):
-        h = 0.5 * (A[k - 1] + B[k + 1])
+        h = 0.5 * (Av[k] + Bv[k])
         thr = hv0[p] + dhv[p] * (k - o) if cav_on else -HEAD_LIMIT_M
         if not (h >= thr and h <= HEAD_LIMIT_M):
             return True
@@ -428,10 +465,8 @@ def _pipe_with_cavities(
     dt,
     psi,
     cav_on,
-    A,
-    B,
-    An,
-    Bn,
+    Av,
+    Bv,
     Vc,
     Qcu,
     Qcd,
@@ -447,10 +482,12 @@ def _pipe_with_cavities(
     acc,
     stats,
 ):  # pragma: no cover - compiled
-    """DVCM update of the interior of pipe ``p``; returns its number of open (or closing) cavities.
+    """DVCM update of the interior of pipe ``p``, after the flat update treated it as liquid;
+    returns its number of open (or closing) cavities.
 
-    From the old state ``A``, ``B`` into ``An``, ``Bn``. Flows are scaled (``q = B Q``); the cavity
-    volume uses real flows ``(qd - qu)/B``. A section with a cavity keeps its two flows in ``Qcu``,
+    The characteristics each section received are recovered by :func:`_arrived`; a section that
+    stays liquid keeps what the flat update wrote. Flows are scaled (``q = B Q``); the cavity volume
+    uses real flows ``(qd - qu)/B``. A section with a cavity keeps its two flows in ``Qcu``,
     ``Qcd``; its outgoing characteristics use the downstream-side flow for ``C+`` and the
     upstream-side flow for ``C-``.
     """
@@ -464,23 +501,22 @@ def _pipe_with_cavities(
         v_old = Vc[k]
         if v_old < 0.0:  # JUST_CLOSED last step: liquid now
             v_old = 0.0
-        cp = A[k - 1]
-        cm = B[k + 1]
-        h = 0.5 * (cp + cm)
-        if not (abs(h) <= HEAD_LIMIT_M):
+        h2 = Av[k] + Bv[k]
+        if not (abs(h2) <= 2.0 * HEAD_LIMIT_M):
             stats[ST_STATUS] = STATUS_PIPE_NONFINITE
             stats[ST_WHERE] = p
             return count
         hv = hv0[p] + dhv[p] * j
-        if cav_on and (v_old > 0.0 or h < hv - 1e-6):
+        if cav_on and (v_old > 0.0 or 0.5 * h2 < hv - 1e-6):
+            cp, cm = _arrived(Av[k], Bv[k], r)
             qu = cp - hv
             qd = hv - cm
             old_rate = (Qcd[k] - Qcu[k]) * inv_b if v_old > 0.0 else 0.0
             vol = v_old + dt * (psi * (qd - qu) * inv_b + (1.0 - psi) * old_rate)
             if vol > 0.0:
                 Hf[k] = hv
-                An[k] = hv + qd - r * qd * abs(qd)
-                Bn[k] = hv - qu + r * qu * abs(qu)
+                Av[k] = hv + qd - r * qd * abs(qd)
+                Bv[k] = hv - qu + r * qu * abs(qu)
                 Qcu[k] = qu
                 Qcd[k] = qd
                 Vc[k] = vol
@@ -498,20 +534,15 @@ def _pipe_with_cavities(
                 qu = cp - h
                 qd = h - cm
                 Hf[k] = h
-                An[k] = h + qd - r * qd * abs(qd)
-                Bn[k] = h - qu + r * qu * abs(qu)
+                Av[k] = h + qd - r * qd * abs(qd)
+                Bv[k] = h - qu + r * qu * abs(qu)
                 Vc[k] = JUST_CLOSED
                 count += 1  # its two flows still differ: keep the pipe on this path one more step
                 stats[ST_COLLAPSES] += 1
                 if stats[ST_FIRST_COLLAPSE] < 0:
                     stats[ST_FIRST_COLLAPSE] = step
                 continue
-        Vc[k] = 0.0
-        Hf[k] = h
-        q = 0.5 * (cp - cm)
-        f = r * q * abs(q)
-        An[k] = h + q - f
-        Bn[k] = h - q + f
+        Vc[k] = 0.0  # liquid: the flat update stands
     return count
 
 
@@ -548,7 +579,6 @@ def run(
     pipe_rank,
     n_plain,
     node_classes,
-    block_nodes,
     gkind,
     gfixed,
     ghv,
@@ -557,11 +587,8 @@ def run(
     group_rank,
     eptr,
     esgn,
-    er,
     einv,
     esec,
-    ein,
-    eout,
     vptr,
     vq0,
     vdh0,
@@ -593,26 +620,22 @@ def run(
     """Advance ``n_steps`` steps of ``dt``; fill the output arrays; return the final state.
 
     ``state0`` holds the outgoing characteristics ``C+`` then ``C-`` of every section (length
-    ``2 N``); ``rco`` is scaled (``R/B^2``), ``sr`` too but marks the pipes' first and last
-    sections (:data:`PIPE_END`); ``bco`` is ``B`` per pipe. Per pipe end: ``esec`` its section,
-    ``ein`` where in ``state0`` the characteristic its node receives is, ``eout`` where the one
-    the node sends goes. Groups ``0 .. node_classes[2]-1`` are the dead ends and two-pipe
-    junctions of :func:`_end_nodes`, the other plain junctions follow; ``block_nodes[c, b]`` is the
-    first group of class ``c`` (dead ends at a last section, at a first, two-pipe junctions,
-    others) done with block ``b`` (the last block that holds one of its sections). ``pipe_rank``
-    and ``group_rank`` give the order of the final sums. Returns (section heads, arrestor gas
-    volumes, cavity volume left).
+    ``2 N``); ``rco`` is scaled (``R/B^2``) per pipe, ``sr`` per section with the sign of a pipe's
+    first and last sections turned (``-R'``, see :func:`_flat_block`); ``bco`` is ``B`` per pipe.
+    Per pipe end: ``esec`` its section, ``esgn`` +1 at a pipe's last section, -1 at its first. Groups
+    ``0 .. node_classes[2]-1`` are the dead ends and two-pipe junctions of :func:`_end_nodes`
+    (boundaries ``node_classes``), the other plain junctions follow up to ``n_plain``.
+    ``pipe_rank`` and ``group_rank`` give the order of the final sums. Returns (section heads,
+    arrestor gas volumes, cavity volume left).
     """
     ns = len(sr)
-    # old and new state, C+ of every section then C-; they swap every step. The flat loop gets the
-    # halves as four separate arguments, so that the compiler can tell that they do not overlap
-    # and vectorises it
-    S = state0.copy()
-    Sn = state0.copy()
-    A = S[:ns]
-    B = S[ns:]
-    An = Sn[:ns]
-    Bn = Sn[ns:]
+    # storage (module docstring): C+ drifts down and C- up one place per step, so that a section
+    # reads and writes the same two places; moved back every `span` steps
+    span = max(1, min(n_steps, max(REBASE_STEPS, ns)))
+    half = ns + span + 2
+    S = np.empty(2 * half)
+    S[span + 1 : span + 1 + ns] = state0[:ns]
+    S[half : half + ns] = state0[ns:]
     Vc = np.zeros(ns)
     Qcu = np.zeros(ns)
     Qcd = np.zeros(ns)
@@ -642,8 +665,21 @@ def run(
     n_active = 0
     n_todo = 0
     esec_u = esec.astype(np.uint64)  # unsigned: see _end_nodes
-    eptr_u = eptr.astype(np.uint64)  # unsigned: see _other_nodes
-    n_dead = node_classes[1]
+    # where a pipe end reads and writes in S at step j of a placement: C_P (last section) from the
+    # C+ half, C_M (first section) from the C- half; the ghost goes to the other half
+    n_ends = len(esec)
+    ein0 = np.empty(n_ends, dtype=np.int64)
+    eout0 = np.empty(n_ends, dtype=np.int64)
+    edir = np.empty(n_ends, dtype=np.int64)
+    for e in range(n_ends):
+        if esgn[e] > 0.0:
+            ein0[e] = esec[e] + span + 1
+            eout0[e] = esec[e] + half
+            edir[e] = -1
+        else:
+            ein0[e] = esec[e] + half
+            eout0[e] = esec[e] + span + 1
+            edir[e] = 1
     stats[ST_FIRST_COLLAPSE] = -1
     for gi in range(n_groups):
         gmax_first[gi] = ghead0[gi]
@@ -652,52 +688,31 @@ def run(
     for r in range(len(rec_groups)):
         rec_out[0, r] = ghead0[rec_groups[r]]
     supply_old = acc[ACC_SUPPLY]
+    j = 0
     for step in range(1, n_steps + 1):
         t = step * dt
         last = step == n_steps
         gmax = gmax_after if stats[ST_FIRST_COLLAPSE] >= 0 else gmax_first
-        # 1. block by block, the sections, then the nodes whose sections are all done (their
-        # data still in cache): dead ends and two-pipe junctions, the other plain junctions
-        nbad = 0
-        for b in range(n_blocks):
-            k0 = max(off[block_pipe[b]], 1)
-            k1 = off[block_pipe[b + 1]] if b + 1 < n_blocks else ns - 1
-            block_bad[b] = _flat_block(A, B, An, Bn, sr, k0, k1, block_thr[b], Hf, last)
-            nbad += block_bad[b]
-            _end_nodes(
-                A,
-                B,
-                An,
-                Bn,
-                block_nodes[0, b],
-                block_nodes[0, b + 1],
-                block_nodes[1, b],
-                block_nodes[1, b + 1],
-                block_nodes[2, b],
-                block_nodes[2, b + 1],
-                n_dead,
-                esec_u,
-                er,
-                einv,
-                gbs,
-                gh,
-            )
-            _other_nodes(
-                S,
-                Sn,
-                block_nodes[3, b],
-                block_nodes[3, b + 1],
-                eptr_u,
-                ein,
-                eout,
-                esgn,
-                er,
-                einv,
-                gbs,
-                gh,
-            )
-        # 2. heads checked; the general solver for those that fail and for the reservoirs, valves
-        # and arrestors
+        j += 1
+        if j > span:  # move the state back to its starting place
+            for k in range(ns - 1, -1, -1):
+                S[span + 1 + k] = S[1 + k]
+            for k in range(ns):
+                S[half + k] = S[half + span + k]
+            j = 1
+        # Av[k], Bv[k]: what arrives at section k (C_P = C+ of k-1, C_M = C- of k+1), then what
+        # it sends
+        Av = S[span + 1 - j : span + 1 - j + ns]
+        Bv = S[half + j : half + j + ns]
+        # 1. the plain junctions: heads and ghosts; checked, and the general solver for those that
+        # fail and for the reservoirs, valves and arrestors
+        _end_nodes(
+            Av, Bv, node_classes[0], node_classes[1], node_classes[2], esec_u, einv, gbs, gh
+        )
+        _junctions(
+            Av, Bv, node_classes[2], node_classes[3], node_classes[4], eptr, esec_u, einv, gbs, gh
+        )
+        _other_nodes(S, node_classes[4], n_plain, eptr, ein0, eout0, edir, j, einv, gbs, gh)
         nd = 0
         if _check_plain(gh, gthr, gmax, gmin, n_plain, chunk_bad) > 0:
             for c in range(len(chunk_bad)):
@@ -724,7 +739,7 @@ def run(
             scb = 0.0
             for e in range(e0, e1):
                 k = esec[e]
-                scb += (A[k - 1] if esgn[e] > 0.0 else B[k + 1]) * einv[e]
+                scb += (Av[k] if esgn[e] > 0.0 else Bv[k]) * einv[e]
             bs = gbs[gi]
             cs = scb * bs
             kind = gkind[gi]
@@ -774,13 +789,10 @@ def run(
                 supply += qv_total + (head - cs) / bs
             for e in range(e0, e1):
                 k = esec[e]
-                sg = esgn[e]
-                if sg > 0.0:
-                    q = sg * (A[k - 1] - head)
-                    Bn[k] = head - sg * q + sg * (er[e] * q * abs(q))
+                if esgn[e] > 0.0:
+                    Bv[k] = 2.0 * head - Av[k]
                 else:
-                    q = sg * (B[k + 1] - head)
-                    An[k] = head - sg * q + sg * (er[e] * q * abs(q))
+                    Av[k] = 2.0 * head - Bv[k]
             gh[gi] = head
             if head > gmax[gi]:
                 gmax[gi] = head
@@ -790,6 +802,14 @@ def run(
         if stats[ST_STATUS] != STATUS_OK:
             stats[ST_STEP] = step
             break
+        # 2. every section, block by block (a block's threshold bounds the vapour heads of its
+        # liquid pipes)
+        nbad = 0
+        for b in range(n_blocks):
+            k0 = off[block_pipe[b]]
+            k1 = off[block_pipe[b + 1]] if b + 1 < n_blocks else ns
+            block_bad[b] = _flat_block(Av, Bv, sr, k0, k1, block_thr[b], Hf, last)
+            nbad += block_bad[b]
         # 3. DVCM: pipes newly below their vapour head (found in the blocks that have some),
         # merged in increasing order with those holding cavities
         n_todo = 0
@@ -801,7 +821,7 @@ def run(
                 for p in range(block_pipe[b], block_pipe[b + 1]):
                     if nre[p] < 2 or cavcount[p] > 0:
                         continue
-                    if not _flagged(p, A, B, off, nre, hv0, dhv, cav_on):
+                    if not _flagged(p, Av, Bv, off, nre, hv0, dhv, cav_on):
                         continue
                     while i < n_active and active[i] < p:
                         todo[n_todo] = active[i]
@@ -822,10 +842,8 @@ def run(
                     dt,
                     psi,
                     cav_on,
-                    A,
-                    B,
-                    An,
-                    Bn,
+                    Av,
+                    Bv,
                     Vc,
                     Qcu,
                     Qcd,
@@ -860,9 +878,6 @@ def run(
             row = step // rec_every
             for r in range(len(rec_groups)):
                 rec_out[row, r] = gh[rec_groups[r]]
-        S, Sn = Sn, S
-        A, An = An, A
-        B, Bn = Bn, B
     for gi in range(n_groups):
         for e in range(eptr[gi], eptr[gi + 1]):
             Hf[esec[e]] = gh[gi]
