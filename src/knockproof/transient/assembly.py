@@ -10,9 +10,10 @@ of about :data:`BLOCK_SECTIONS` sections, which the kernel updates one at a time
 Nodes joined by lumped pipes are merged into one *group* (a union-find); each group has a list of
 pipe ends (CSR: ``end_ptr``), in a canonical order (the arriving pipes' ends first, then the leaving
 ones', each by pipe name), of valves (``valve_ptr``) and at most one arrestor. Groups are numbered:
-the plain liquid junctions first, in six classes (dead ends at a pipe's last section; at its first;
-two-pipe junctions whose two pipe-end sections are neighbours; junctions of one arriving and two
-leaving pipes; of one arriving and three leaving; the others), within a class by their number of
+the plain liquid junctions first, in seven classes (dead ends at a pipe's last section; at its
+first; two-pipe junctions whose two pipe-end sections are neighbours; junctions of one arriving and
+two leaving pipes; of one arriving and three leaving; of one arriving and more leaving; the others:
+a tree laid out from its supply has none), within a class by their number of
 pipe ends and then by their last section; then the groups holding a reservoir, valve or arrestor,
 in the order of their degree.
 Neither the pipe order nor the group numbers change a result: every sum at a node runs over its
@@ -88,7 +89,7 @@ class Layout:
     group_head: np.ndarray
     group_bs: np.ndarray
     plain_count: int
-    node_classes: np.ndarray  # where the 2nd to 6th classes of plain junctions start
+    node_classes: np.ndarray  # where the 2nd to 7th classes of plain junctions start
     end_ptr: np.ndarray
     end_section: np.ndarray
     end_sign_f: np.ndarray  # +1 at a pipe's last section, -1 at its first
@@ -552,7 +553,7 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     plus = np.where(e_sign[one] > 0, one, two)
     minus = np.where(e_sign[one] > 0, two, one)
     arriving = np.bincount(e_group[e_sign > 0], minlength=n_groups)
-    kind = np.full(n_groups, 5, dtype=np.int64)  # other plain junctions
+    kind = np.full(n_groups, 6, dtype=np.int64)  # other plain junctions
     kind[(degree == 1) & (e_sign[one] > 0)] = 0  # dead end at a pipe's last section
     kind[(degree == 1) & (e_sign[one] < 0)] = 1  # dead end at a pipe's first section
     kind[
@@ -560,7 +561,8 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     ] = 2  # two-pipe junction whose two pipe-end sections are neighbours
     kind[(degree == 3) & (arriving == 1)] = 3  # one pipe arriving, two leaving
     kind[(degree == 4) & (arriving == 1)] = 4  # one pipe arriving, three leaving
-    kind[special] = 6
+    kind[(degree > 4) & (arriving == 1)] = 5  # one pipe arriving, more leaving
+    kind[special] = 7
     # within a class, plain groups by their number of pipe ends (so that the kernel's loops over
     # them run the same number of times from one group to the next), then in the order of their
     # last section (memory order)
@@ -576,7 +578,7 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     head_g = head_g[old_of_new]
     kind = kind[old_of_new]
     fixed = {int(renumber[k]): h for k, h in fixed.items()}
-    node_classes = np.searchsorted(kind, [1, 2, 3, 4, 5]).astype(np.int64)
+    node_classes = np.searchsorted(kind, [1, 2, 3, 4, 5, 6]).astype(np.int64)
     group_kind = np.zeros(n_groups, dtype=np.int64)
     fixed_head = np.zeros(n_groups)
     for gi, h in fixed.items():

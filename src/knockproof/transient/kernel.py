@@ -386,6 +386,27 @@ def _junctions(Av, Bv, g0, g1, g2, eptr, esec, einv, gbs, gh):  # pragma: no cov
 
 
 @njit(cache=True, _nrt=False)
+def _fans(Av, Bv, g0, g1, eptr, esec, einv, gbs, gh):  # pragma: no cover - compiled
+    """Junctions of one arriving pipe and any number leaving (groups ``g0 .. g1-1``; the arriving
+    pipe's end first), as :func:`_junctions` with a loop over the leaving pipes."""
+    for gi in range(g0, g1):
+        e0 = eptr[gi]
+        e1 = eptr[gi + 1]
+        k0 = esec[e0]
+        c0 = Av[k0]
+        scb = 0.0 + c0 * einv[e0]
+        for e in range(e0 + 1, e1):
+            scb += Bv[esec[e]] * einv[e]
+        head = scb * gbs[gi]
+        gh[gi] = head
+        two_h = 2.0 * head
+        Bv[k0] = two_h - c0
+        for e in range(e0 + 1, e1):
+            k = esec[e]
+            Av[k] = two_h - Bv[k]
+
+
+@njit(cache=True, _nrt=False)
 def _other_nodes(S, g0, g1, eptr, ein0, eout0, edir, j, einv, gbs, gh):  # pragma: no cover
     """The other plain junctions ``g0 .. g1-1`` (pipe ends in the canonical order) on the storage
     ``S`` at step ``j`` of the current placement: pipe end ``e`` brings ``S[ein0[e] + edir[e] j]``
@@ -622,9 +643,10 @@ def run(
     ``state0`` holds the outgoing characteristics ``C+`` then ``C-`` of every section (length
     ``2 N``); ``rco`` is scaled (``R/B^2``) per pipe, ``sr`` per section with the sign of a pipe's
     first and last sections turned (``-R'``, see :func:`_flat_block`); ``bco`` is ``B`` per pipe.
-    Per pipe end: ``esec`` its section, ``esgn`` +1 at a pipe's last section, -1 at its first. Groups
-    ``0 .. node_classes[2]-1`` are the dead ends and two-pipe junctions of :func:`_end_nodes`
-    (boundaries ``node_classes``), the other plain junctions follow up to ``n_plain``.
+    Per pipe end: ``esec`` its section, ``esgn`` +1 at a pipe's last section, -1 at its first. The
+    plain junctions (groups ``0 .. n_plain-1``) come in classes starting at ``0`` and at
+    ``node_classes``: see :func:`_end_nodes`, :func:`_junctions`, :func:`_fans` and
+    :func:`_other_nodes`.
     ``pipe_rank`` and ``group_rank`` give the order of the final sums. Returns (section heads,
     arrestor gas volumes, cavity volume left).
     """
@@ -712,7 +734,8 @@ def run(
         _junctions(
             Av, Bv, node_classes[2], node_classes[3], node_classes[4], eptr, esec_u, einv, gbs, gh
         )
-        _other_nodes(S, node_classes[4], n_plain, eptr, ein0, eout0, edir, j, einv, gbs, gh)
+        _fans(Av, Bv, node_classes[4], node_classes[5], eptr, esec_u, einv, gbs, gh)
+        _other_nodes(S, node_classes[5], n_plain, eptr, ein0, eout0, edir, j, einv, gbs, gh)
         nd = 0
         if _check_plain(gh, gthr, gmax, gmin, n_plain, chunk_bad) > 0:
             for c in range(len(chunk_bad)):
