@@ -68,7 +68,7 @@ class Layout:
     # sections, in layout order
     section_count: int
     state0: np.ndarray  # C+ = H + q - R' q|q| of every section, then C- = H - q + R' q|q|
-    section_r_marked: np.ndarray  # R' = R/B^2, sign turned at the pipes' end sections
+    section_r: np.ndarray  # R' = R/B^2 (float32), read by the kernel's flat loop
     # pipes (only the unlumped ones, in layout order)
     pipe_index: np.ndarray
     pipe_rank: np.ndarray  # layout index of each unlumped pipe, in network order
@@ -605,9 +605,6 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     section_r = r_scaled[owner]
     friction_term = section_r * q * np.abs(q)
     state0 = np.concatenate([head + q - friction_term, head - q + friction_term])
-    r_marked = section_r.astype(np.float32)  # for the kernel's flat loop (kernel._flat_block)
-    r_marked[offset] = -r_marked[offset]  # a pipe's end sections: sign turned
-    r_marked[offset + reaches] = -r_marked[offset + reaches]
 
     # groups: pipe ends, in a canonical order at each node: the arriving pipes' ends (their last
     # sections) first, then the leaving ones', each by pipe name (the kernel's written-out
@@ -673,7 +670,7 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     return Layout(
         section_count=total,
         state0=state0,
-        section_r_marked=r_marked,
+        section_r=section_r.astype(np.float32),  # exact: rounded to single precision above
         pipe_index=lay_pipe.astype(np.int64),
         pipe_rank=np.argsort(order),
         offset=offset,

@@ -270,8 +270,10 @@ back to its starting place every ``max(REBASE_STEPS, sections)`` steps."""
 def _flat_block(Av, Bv, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - compiled
     """Update sections ``k0 .. k1-1`` in place: ``Av[k]``, ``Bv[k]`` hold the characteristics
     arriving at section ``k`` (``C_P``, ``C_M``) and receive the ones it sends (``C+``, ``C-``).
-    Returns how many interior sections (``sr >= 0``; a pipe's end sections carry ``-R'``) fall
-    below ``thr`` or beyond :data:`HEAD_LIMIT_M` or are not finite."""
+    Returns how many sections fall below ``thr`` or are not finite (a pipe's end sections, which
+    carry their node's head, are counted too: they only make the caller look at the block's pipes
+    more closely). Heads that grow without bound are caught here once they turn non-finite, and
+    at the nodes against :data:`HEAD_LIMIT_M` every step."""
     m = k1 - k0
     if m <= 0:
         return 0
@@ -281,33 +283,28 @@ def _flat_block(Av, Bv, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - com
     r = sr[k0:k1]
     nbad = 0
     # the outgoing characteristics are C_P - R' q|q| and C_M + R' q|q| (H + q = C_P, H - q = C_M);
-    # the head is checked as C_P + C_M = 2 H against twice the bounds (exact scaling)
+    # the head is checked as C_P + C_M = 2 H against twice the bound (exact scaling)
     lo = 2.0 * thr
-    hi = 2.0 * HEAD_LIMIT_M
     if write_h:
         h_out = Hf[k0:k1]
         for i in range(m):
             cp = a[i]
             cm = b[i]
-            ri = r[i]
             q = 0.5 * (cp - cm)
-            f = np.float64(abs(ri)) * q * abs(q)
+            f = np.float64(r[i]) * q * abs(q)
             a[i] = cp - f
             b[i] = cm + f
             h_out[i] = 0.5 * (cp + cm)
-            s = cp + cm
-            nbad += (ri >= 0.0) & (not (s >= lo and s <= hi))
+            nbad += not (cp + cm >= lo)
     else:
         for i in range(m):
             cp = a[i]
             cm = b[i]
-            ri = r[i]
             q = 0.5 * (cp - cm)
-            f = np.float64(abs(ri)) * q * abs(q)
+            f = np.float64(r[i]) * q * abs(q)
             a[i] = cp - f
             b[i] = cm + f
-            s = cp + cm
-            nbad += (ri >= 0.0) & (not (s >= lo and s <= hi))
+            nbad += not (cp + cm >= lo)
     return nbad
 
 
@@ -641,8 +638,8 @@ def run(
     """Advance ``n_steps`` steps of ``dt``; fill the output arrays; return the final state.
 
     ``state0`` holds the outgoing characteristics ``C+`` then ``C-`` of every section (length
-    ``2 N``); ``rco`` is scaled (``R/B^2``) per pipe, ``sr`` per section with the sign of a pipe's
-    first and last sections turned (``-R'``, see :func:`_flat_block`); ``bco`` is ``B`` per pipe.
+    ``2 N``); ``rco`` is scaled (``R/B^2``) per pipe, ``sr`` per section (single precision);
+    ``bco`` is ``B`` per pipe.
     Per pipe end: ``esec`` its section, ``esgn`` +1 at a pipe's last section, -1 at its first. The
     plain junctions (groups ``0 .. n_plain-1``) come in classes starting at ``0`` and at
     ``node_classes``: see :func:`_end_nodes`, :func:`_junctions`, :func:`_fans` and

@@ -233,7 +233,7 @@ def simulate(
         steps, dt, CAVITY_WEIGHT, cavitation,
         lay.state0,
         lay.offset, lay.reaches, lay.b_coef, lay.r_scaled,
-        lay.vapour_head_start, lay.vapour_head_step, lay.section_r_marked,
+        lay.vapour_head_start, lay.vapour_head_step, lay.section_r,
         lay.block_pipe, lay.pipe_rank,
         lay.plain_count, lay.node_classes,
         lay.group_kind, lay.group_fixed_head, lay.group_vapour_head, lay.group_bs, lay.group_head,
