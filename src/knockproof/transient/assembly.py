@@ -56,9 +56,8 @@ HEAD_TOLERANCE_M = 1e-3
 
 
 BLOCK_SECTIONS = 1024
-"""Sections per block of consecutive pipes (about): the kernel updates a block's sections and then
-the junctions whose sections are done while the data is in cache, and looks for sections below
-their vapour head block by block."""
+"""Sections per block of consecutive pipes (about): the kernel looks for sections below their
+vapour head block by block, against a bound of each block's own vapour heads."""
 
 
 @dataclass(eq=False)

@@ -3,8 +3,8 @@
 Per pipe, with ``B = a/(g A)`` and ``R = f dx/(2 g D A^2)`` (Wylie & Streeter, *Fluid Transients in
 Systems*, 1993, eqs. 3-18 to 3-21; Chaudhry, *Applied Hydraulic Transients*, 2014, sec. 3.3):
 
-    C+ :  H_P = C_P - B Q_P,   C_P = H_A + B Q_A - R Q_A |Q_A|     (from the section upstream) C- :
-    H_P = C_M + B Q_P,   C_M = H_B - B Q_B + R Q_B |Q_B|     (from the section downstream)
+    C+ :  H_P = C_P - B Q_P,   C_P = H_A + B Q_A - R Q_A |Q_A|     (from the section upstream)
+    C- :  H_P = C_M + B Q_P,   C_M = H_B - B Q_B + R Q_B |Q_B|     (from the section downstream)
 
 Interior section: ``H_P = (C_P + C_M)/2``, ``Q_P = (C_P - C_M)/(2B)``. Friction is quasi-steady and
 explicit (first order), adequate at Courant number 1 for the ``f L V/(2 D a)`` of building piping.
@@ -36,28 +36,41 @@ pipe's own ``B``, so that the characteristics read ``C_P = H_A + q_A - R' q_A|q_
 q_B + R' q_B|q_B|`` with ``R' = R/B^2``, and an interior section is ``H = (C_P + C_M)/2``, ``q =
 (C_P - C_M)/2``: one coefficient per section and no division. Each section keeps the two
 characteristics it sends out, ``C+ = H + q - R' q|q|`` (read by the section downstream as its
-``C_P``) and ``C- = H - q + R' q|q|`` (read upstream as ``C_M``), in two arrays; each is computed
-once, where the section is updated, and the arithmetic is the same as computing it where it is
-read. A section with an open cavity (or one that closed this step, ``JUST_CLOSED``) sends ``C+``
-with its downstream-side flow and ``C-`` with its upstream-side one.
+``C_P``) and ``C- = H - q + R' q|q|`` (read upstream as ``C_M``); each is computed once, where the
+section is updated, and the arithmetic is the same as computing it where it is read. A section with
+an open cavity (or one that closed this step, ``JUST_CLOSED``) sends ``C+`` with its
+downstream-side flow and ``C-`` with its upstream-side one.
 
-A step reads the old state and writes the new (they swap every step; the flat loop gets their
-halves as four separate arrays, so that the compiler can tell that they do not overlap and
-vectorises it). Block by block
-(consecutive pipes of about :data:`~knockproof.transient.assembly.BLOCK_SECTIONS` sections, while
-their data is in cache): (1) the liquid update of every section in one flat loop, counting the
-interior sections below a bound of the block's vapour heads; (2) the plain junctions whose pipe
-ends all lie in blocks done so far, which overwrite their pipe-end sections: dead ends and two-pipe
-junctions whose two pipe-end sections are neighbours (the great majority in a building: fixture
-stubs and runs) in tight loops over contiguous arrays, with one unsigned section number per node,
-then the others. After the blocks: (3) the heads of the plain junctions are checked against their
-vapour heads in one vectorised pass that also keeps the peaks; those that fail (and the
-reservoirs, valves and arrestors) go to the general node solver; (4) the DVCM update, from the old
-state, of the pipes that hold cavities or that the count in (1) flags (then checked section by
-section). Sums at a node run over its pipe ends in a canonical order, so the layout order changes
-no result; the grouping into blocks and classes changes no arithmetic either. The interior heads
-and the node heads are checked every step (a head beyond :data:`HEAD_LIMIT_M` or not finite stops
-the run and names the pipe), as the vapour heads must be.
+Storage: one array holds the ``C+`` of every section in one half and the ``C-`` in the other, and
+the two drift through their halves, ``C+`` one place down and ``C-`` one place up per step (at step
+``j`` the views ``Av = S[span + 1 - j :]`` and ``Bv = S[half + j :]``). Then the ``C_P`` that
+section ``k`` receives (the ``C+`` section ``k - 1`` sent) is ``Av[k]``, its ``C_M`` is ``Bv[k]``,
+and it writes what it sends to the same two places: the update is in place, one state instead of
+an old and a new one, and its working set (about 20 bytes a section) stays in the core's own cache
+for trees of some 40,000 sections. Every ``span`` steps (:data:`REBASE_STEPS` or the number of
+sections, whichever is larger) the state is moved back to its starting place.
+
+Nodes by ghost values: a pipe-end section is updated by the same loop as an interior one, once its
+node has put ``2 H - C`` into the place of the characteristic that would come from beyond the pipe
+end (``C`` being the one that comes along the pipe, ``H`` the node head): the section then gets
+``H`` (to rounding) and the flow of the node equations (``q = C - H`` at a pipe's last section, ``H -
+C`` at its first), and friction is applied the same way as inside the pipe. A step: (1) the plain
+junctions, from what arrives at their pipe ends, write their heads and ghosts, in classes written
+out for speed: dead ends (``H = C``, ghost ``C``) and two-pipe junctions whose two pipe-end
+sections are neighbours; junctions of one arriving and two or three leaving pipes; of one arriving
+and more; the others (a tree laid out from its supply has none); (2) their heads are checked
+against their vapour heads in one vectorised pass that also keeps the peaks; those that fail (and
+the reservoirs, valves and arrestors) go to the general node solver, which writes its own ghosts;
+(3) every section, block by block (consecutive pipes of about
+:data:`~knockproof.transient.assembly.BLOCK_SECTIONS` sections), in one flat loop that the compiler
+vectorises, counting the sections below a bound of the block's vapour heads; (4) the DVCM update of
+the pipes that hold cavities or that the count in (3) flags: the characteristics a section received
+are recovered exactly enough from the two it sent (:func:`_arrived`), and a section that stays
+liquid keeps what the flat loop wrote. Sums at a node run over its pipe ends in a canonical order,
+so the layout order changes no result; the grouping into blocks and classes changes no arithmetic
+either. The node heads are checked every step (a head beyond :data:`HEAD_LIMIT_M` or not finite
+stops the run and names the node), the interior heads for their vapour heads and for non-finite
+values (which stop the run and name the pipe).
 
 The helper functions are compiled without numba's reference counting (``_nrt=False``; they
 allocate nothing): with it, each array passed costs atomic increments and decrements per call,
