@@ -54,3 +54,17 @@ def test_dead_end_doubles_the_arriving_step():
     assert res.largest_wave_speed_adjustment < 1e-12
     np.testing.assert_allclose(rise_end[arrive], 2.0 * (2.0 / 3.0) * step, rtol=1e-9)
     assert abs(rise_end[arrive - 4]) < 1e-6 * step  # not arrived yet
+
+
+def test_arrived_characteristics_are_recovered_from_those_sent():
+    # A liquid section sends a = C_P - R' q|q| and b = C_M + R' q|q| with q = (C_P - C_M)/2 (Wylie &
+    # Streeter 1993, eqs. 3-18 to 3-21, in head units); the DVCM pass inverts that map. Check: the
+    # inputs come back, for flows both ways and friction from none to far beyond building piping.
+    from knockproof.transient.kernel import _arrived
+
+    for r in (0.0, 1e-6, 1e-3, 0.05):
+        for cp, cm in ((50.0, 49.0), (49.0, 50.0), (12.5, -3.0), (100.0, 100.0), (-2.0, 7.5)):
+            q = 0.5 * (cp - cm)
+            f = r * q * abs(q)
+            back = _arrived(cp - f, cm + f, r)
+            np.testing.assert_allclose(back, (cp, cm), rtol=0, atol=1e-12)

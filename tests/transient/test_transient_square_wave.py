@@ -49,3 +49,19 @@ def test_square_wave_peak_reported_as_first_peak():
     assert abs(peak - (net.density_kg_m3 * G * HEAD + rise_pa)) < 1e-9 * peak
     assert np.isnan(result.first_collapse_time_s)
     assert np.isnan(result.node_collapse_peak_pressure_pa[1])
+
+
+def test_square_wave_holds_over_a_long_run():
+    # 9,000 steps: the kernel moves its drifting state back to its starting place every 4,096 steps
+    # (kernel.REBASE_STEPS); the analytic square wave must run on unchanged across those moves.
+    net = _line()
+    dt = 0.01
+    result = simulate(net, 90.0, time_step_s=dt, record_nodes=[1], cavitation=False)
+    assert result.steps == 9000
+    head = result.traces_pressure_pa[1] / (net.density_kg_m3 * G)
+    rise = SPEED * VELOCITY / G  # Joukowsky, analytic
+    n = np.arange(len(head))
+    phase = ((n - 1) // round(2 * LENGTH / SPEED / dt)) % 2
+    expected = np.where(phase == 0, HEAD + rise, HEAD - rise)
+    expected[0] = HEAD
+    np.testing.assert_allclose(head, expected, rtol=0, atol=1e-9 * HEAD)
