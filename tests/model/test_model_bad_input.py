@@ -544,3 +544,42 @@ def test_several_structure_problems_reported_together(tmp_path: Path) -> None:
         ('pipe "P2"', "size", line_of(text, "[[pipe]]", 2)),
         ('fixture "F1"', "colour", line_of(text, 'colour = "white"')),
     }
+
+
+DEVICE = """
+[[device]]
+id = "BFP-1"
+kind = "backflow-preventer"
+node = "A"
+rating = {rating}
+"""
+
+
+def test_device_rating_bare_number_takes_psi(tmp_path: Path) -> None:
+    # units = "us" by default: a bare pressure is psi (docs/input-format.md); 1 psi = 6894.757 Pa.
+    path = write(tmp_path, MINIMAL + DEVICE.format(rating=175))
+    (dev,) = load_building(path).devices
+    assert dev.rating_pa == pytest.approx(175 * 6894.757293168)
+
+
+def test_negative_device_rating(tmp_path: Path) -> None:
+    text = MINIMAL + DEVICE.format(rating='"-5 psi"')
+    path = write(tmp_path, text)
+    with pytest.raises(
+        InputError,
+        match=where(path, line_of(text, 'rating = "-5 psi"'), 'device "BFP-1"', "rating")
+        + ": must be more than zero",
+    ):
+        load_building(path)
+
+
+def test_implausible_device_rating(tmp_path: Path) -> None:
+    # 5000 psi (34 MPa) is over the 10 MPa limit for a device rating (docs/limits.md).
+    text = MINIMAL + DEVICE.format(rating='"5000 psi"')
+    path = write(tmp_path, text)
+    with pytest.raises(
+        InputError,
+        match=where(path, line_of(text, 'rating = "5000 psi"'), 'device "BFP-1"', "rating")
+        + ".*outside the plausible range",
+    ):
+        load_building(path)

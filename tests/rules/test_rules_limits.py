@@ -296,3 +296,60 @@ def test_closed_system_with_expansion_tank_is_quiet(check):
 
 def test_open_system_is_quiet(check):
     assert check(flat()).rule("system.closed-no-expansion-tank") == []
+
+
+# ------------------------------------------------------------------ device ratings
+def _rated(text: str, rating: str, node: str = "T", kind: str = "backflow-preventer") -> str:
+    return text + f'\n[[device]]\nid = "DEV-1"\nkind = "{kind}"\nnode = "{node}"\nrating = "{rating}"\n'
+
+
+def _path_peak(c, event_id: str, node: str) -> float:
+    (e,) = [e for e in c.analysis.events if e.id == event_id]
+    (pt,) = [p for p in e.path if p.node == node]
+    return pt.peak_pressure_pa
+
+
+def test_component_rating_fires_for_the_worst_closure_through_its_node(check):
+    # The washer's closed-form peak reaching the tee T (the analysis's figure, another stage) against
+    # the rating the designer wrote (100 psi).
+    c = check(_rated(head() + WASHER.format(static="60 psi", material="copper-L"), "100 psi"))
+    (f,) = c.rule("surge.component-rating")
+    assert f.where["device"] == "DEV-1" and f.where["event"] == "WASHER:cold"
+    assert f.limit == pytest.approx(100 * PSI)
+    assert f.measured == pytest.approx(_path_peak(c, "WASHER:cold", "T"))
+    assert f.measured > f.limit
+    assert f.severity == "error"
+
+
+def test_component_rating_quiet_when_rated_above_the_peak(check):
+    c = check(_rated(head() + WASHER.format(static="60 psi", material="copper-L"), "1000 psi"))
+    assert _path_peak(c, "WASHER:cold", "T") < 1000 * PSI
+    assert c.rule("surge.component-rating") == []
+
+
+def test_component_rating_quiet_without_a_rating(check):
+    c = check(head() + WASHER.format(static="60 psi", material="copper-L")
+              + '\n[[device]]\nid = "DEV-1"\nkind = "backflow-preventer"\nnode = "T"\n')
+    assert c.rule("surge.component-rating") == []
+
+
+def test_component_rating_checks_static_pressure_where_the_closures_are_protected(check):
+    # With the washer's arrestor shown, only static pressure (60 psi) is left against 50 psi.
+    text = head() + WASHER.format(static="60 psi", material="copper-L") + arrestor("W", "AA")
+    c = check(_rated(text, "50 psi", node="S"))
+    (f,) = c.rule("surge.component-rating")
+    assert f.measured == pytest.approx(60 * PSI, rel=1e-6)  # the supply's static pressure, given
+    assert "event" not in f.where and "at rest" in f.message
+    assert check(_rated(text, "100 psi", node="S")).rule("surge.component-rating") == []
+
+
+def test_component_rating_of_a_water_heater_sees_its_hot_outlet(check):
+    # The heater sits on the cold side (WH); its hot connection is the hot side's supply node HS, which
+    # the hot washer's closure reaches.
+    text = flat().replace('kind = "water-heater"\nnode = "WH"\n',
+                          'kind = "water-heater"\nnode = "WH"\nrating = "90 psi"\n')
+    c = check(text)
+    (f,) = c.rule("surge.component-rating")
+    assert f.where["device"] == "HEATER" and f.where["event"] == "WASHER:hot"
+    assert f.measured == pytest.approx(_path_peak(c, "WASHER:hot", "HS"))
+    assert f.measured > 90 * PSI > c.analysis.node("WH").static_pressure_pa

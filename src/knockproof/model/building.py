@@ -112,7 +112,8 @@ class Arrestor:
 class Device:
     """Another device that matters for surges: PRV, check or backflow valve, expansion tank, heater.
 
-    ``node`` is where it sits; ``setting_pa`` is a PRV's outlet setting (gauge) where relevant.
+    ``node`` is where it sits; ``setting_pa`` is a PRV's outlet setting (gauge) where relevant;
+    ``rating_pa`` its rated working pressure (gauge) where the designer gives one.
     """
 
     id: str
@@ -121,6 +122,7 @@ class Device:
     setting_pa: float | None = None
     volume_m3: float | None = None
     line: int | None = None
+    rating_pa: float | None = None
 
 
 @dataclass(frozen=True)

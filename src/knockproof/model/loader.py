@@ -45,6 +45,7 @@ MAX_FILE_BYTES = 5 * 1024 * 1024
 LIMITS = {
     "length": (0.0, 1000.0),  # m, one pipe
     "static_pressure": (0.0, 2.0e6),  # Pa gauge (~290 psi)
+    "rating": (0.0, 10.0e6),  # Pa gauge (~1,450 psi), a device's working pressure rating
     "temperature": (1.0, 99.0),  # degC, liquid water at atmospheric pressure
     "flow": (0.0, 0.02),  # m^3/s (~317 gpm) through one fixture valve
     "closure_time": (0.0, 120.0),  # s
@@ -274,6 +275,7 @@ def _show_range(limit: str, units: str) -> str:
     kind = {
         "length": "length",
         "static_pressure": "pressure",
+        "rating": "pressure",
         "temperature": "temperature",
         "flow": "flow",
         "closure_time": "time",
@@ -403,7 +405,10 @@ def load_building(path: str | Path) -> Building:
             if dv.kind == "prv" and dv.setting is None:
                 c.add(item, "setting", "a pressure-reducing valve needs its outlet setting", key)
             vol = c.q(dv.volume, "volume", item, "volume", key, positive=True)
-            devices.append(Device(dv.id, dv.kind, dv.node, setting, vol, lines.line(key)))
+            rating = c.q(dv.rating, "pressure", item, "rating", key, "rating", positive=True)
+            devices.append(
+                Device(dv.id, dv.kind, dv.node, setting, vol, lines.line(key), rating_pa=rating)
+            )
 
     sides = _node_sides(pipes, supplies)
     pipes = [_with_side(c, p, sides, declared_sides.get(p.id)) for p in pipes]

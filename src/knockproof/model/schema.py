@@ -141,6 +141,9 @@ class DeviceIn(_Strict):
     node: Name
     setting: Quantity | None = Field(None, description="A PRV's outlet pressure setting.")
     volume: Quantity | None = Field(None, description="An expansion tank's volume.")
+    rating: Quantity | None = Field(
+        None, description="The device's rated working pressure (gauge), from its maker."
+    )
 
 
 class PlaceIn(_Strict):

@@ -195,7 +195,7 @@ def _finding_key(f: Any) -> tuple[str, str]:
     texts = []
     for name in ("message", "recommendation"):
         text = str(_get(f, name, ""))
-        for k in ("description", "node", "fixture", "event", "pipe", "arrestor"):
+        for k in ("description", "node", "fixture", "event", "pipe", "arrestor", "device"):
             v = str(where.get(k, "") or "")
             if len(v) > 1:
                 text = text.replace(v, "{" + k + "}")

@@ -1,4 +1,4 @@
-"""Surge rules: the peak pressure of every closure event against a limit and against pipe ratings.
+"""Surge rules: the peak pressure of every closure event against a limit, pipe and device ratings.
 
 A valve counts as protected when the arrestor the schedule asks for is shown with no problem. A
 protected valve's closed-form peak (computed without arrestors) is not held against it; where a
@@ -117,4 +117,69 @@ def pipe_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
             measured=peak, limit=rating, unit="Pa",
             recommendation="protect the closing valve with its arrestor, or use pipe rated for "
             "the peak",
+        )
+
+
+def _device_nodes(ctx: Context, node: str, kind: str) -> list[str]:
+    """The nodes whose pressure a device at ``node`` feels: its own, and for a water heater the
+    outlets fed from it (the heater's hot connection is the hot side's supply node)."""
+    nodes = [node]
+    if kind == "water-heater":
+        nodes += [s.node for s in ctx.building.supplies
+                  if s.kind == "heater-outlet" and s.fed_from == node]
+    return nodes
+
+
+@rule(
+    "surge.component-rating",
+    "Highest pressure at each device within its rated working pressure",
+    "error",
+    "The device's own rating as the designer gives it (rating = ... in [[device]], from the maker's "
+    "data); a device with no rating is not checked.",
+    {"rating_factor": 1.0},
+)
+def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
+    """For every device with a rating: the highest pressure at its node (for a water heater also
+    at the hot outlets it feeds) against the rating times rating_factor. The pressures looked at
+    are the static pressure there and the closed-form peak of every unprotected closure whose path
+    back to its supply passes the node (the simulated peak where the node is the valve's own); a
+    protected closure counts only with its simulated peak, at its valve. One finding per device,
+    for its worst case."""
+    u = ctx.unit_system
+    factor = float(params["rating_factor"])
+    at: dict[str, list[tuple[float, EventResult | None]]] = {}
+    for d in ctx.building.devices:
+        if d.rating_pa is None:
+            continue
+        for n in _device_nodes(ctx, d.node, d.kind):
+            if n in ctx.nodes:
+                at.setdefault(n, []).append((ctx.nodes[n].static_pressure_pa, None))
+    if not at:
+        return
+    for e, peak_valve, protected in _events(ctx):
+        for k, pt in enumerate(e.path):
+            if pt.node in at and (k == 0 or not protected):
+                at[pt.node].append((peak_valve if k == 0 else pt.peak_pressure_pa, e))
+    for d in ctx.building.devices:
+        if d.rating_pa is None:
+            continue
+        cases = [c for n in _device_nodes(ctx, d.node, d.kind) for c in at.get(n, ())]
+        if not cases:
+            continue
+        peak, e = max(cases, key=lambda c: c[0])
+        rating = d.rating_pa * factor
+        if peak <= rating * (1 + 1e-9):
+            continue
+        what = "at rest (static pressure)" if e is None else f"when {e.id} closes"
+        yield new_finding(
+            "surge.component-rating",
+            {"device": d.id, "node": d.node, "description": f"{d.kind} {d.id}"}
+            | ({} if e is None else {"event": e.id}),
+            f"{d.kind} {d.id} (node {d.node}) sees {fmt(peak, 'pressure', u, 0)} {what}; rated "
+            f"{fmt(rating, 'pressure', u, 0)}.",
+            measured=peak, limit=rating, unit="Pa",
+            recommendation="protect the closing valves upstream of it with their arrestors, lower "
+            "the static pressure (a pressure-reducing valve), or choose a device rated for the peak"
+            if e is not None else "lower the static pressure (a pressure-reducing valve) or "
+            "choose a device rated for it",
         )
