@@ -37,10 +37,18 @@ def _events(ctx: Context) -> Iterator[tuple[EventResult, float, bool]]:
 
 
 def _event_where(ctx: Context, e: EventResult) -> dict[str, str]:
-    desc = ctx.fixture_description(list(e.fixtures)) if all(f in ctx.fixtures for f in e.fixtures) \
+    desc = (
+        ctx.fixture_description(list(e.fixtures))
+        if all(f in ctx.fixtures for f in e.fixtures)
         else (e.label or e.node)
-    return {"event": e.id, "node": e.node, "fixture": ", ".join(e.fixtures), "side": e.side,
-            "description": desc}
+    )
+    return {
+        "event": e.id,
+        "node": e.node,
+        "fixture": ", ".join(e.fixtures),
+        "side": e.side,
+        "description": desc,
+    }
 
 
 @rule(
@@ -63,11 +71,14 @@ def peak_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
         w = _event_where(ctx, e)
         state = "with its arrestor (simulated)" if protected else "with no proper arrestor shown"
         yield new_finding(
-            "surge.peak-limit", w,
+            "surge.peak-limit",
+            w,
             f"closing {w['description']} ({e.side}) peaks at {fmt(peak, 'pressure', u, 0)} "
             f"{state}; limit {fmt(limit, 'pressure', u, 0)} (static "
             f"{fmt(e.static_pressure_pa, 'pressure', u, 0)} + surge).",
-            measured=peak, limit=limit, unit="Pa",
+            measured=peak,
+            limit=limit,
+            unit="Pa",
             recommendation="protect the valve with the scheduled arrestor; a slower-closing valve, "
             "lower velocity or lower static pressure also lowers the peak",
         )
@@ -109,12 +120,13 @@ def pipe_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
         said = f", {label}" if label else ""
         yield new_finding(
             "surge.pipe-rating",
-            {"pipe": pid, "node": r.downstream, "event": e.id, "side": r.side,
-             "description": desc},
+            {"pipe": pid, "node": r.downstream, "event": e.id, "side": r.side, "description": desc},
             f"pipe {pid} ({r.nominal_size} in {r.material}{said}) sees "
             f"{fmt(peak, 'pressure', u, 0)} when {e.id} closes; rated "
             f"{fmt(rating, 'pressure', u, 0)}.",
-            measured=peak, limit=rating, unit="Pa",
+            measured=peak,
+            limit=rating,
+            unit="Pa",
             recommendation="protect the closing valve with its arrestor, or use pipe rated for "
             "the peak",
         )
@@ -125,8 +137,11 @@ def _device_nodes(ctx: Context, node: str, kind: str) -> list[str]:
     outlets fed from it (the heater's hot connection is the hot side's supply node)."""
     nodes = [node]
     if kind == "water-heater":
-        nodes += [s.node for s in ctx.building.supplies
-                  if s.kind == "heater-outlet" and s.fed_from == node]
+        nodes += [
+            s.node
+            for s in ctx.building.supplies
+            if s.kind == "heater-outlet" and s.fed_from == node
+        ]
     return nodes
 
 
@@ -166,20 +181,23 @@ def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Findin
         cases = [c for n in _device_nodes(ctx, d.node, d.kind) for c in at.get(n, ())]
         if not cases:
             continue
-        peak, e = max(cases, key=lambda c: c[0])
+        peak, worst = max(cases, key=lambda c: c[0])
         rating = d.rating_pa * factor
         if peak <= rating * (1 + 1e-9):
             continue
-        what = "at rest (static pressure)" if e is None else f"when {e.id} closes"
+        what = "at rest (static pressure)" if worst is None else f"when {worst.id} closes"
         yield new_finding(
             "surge.component-rating",
             {"device": d.id, "node": d.node, "description": f"{d.kind} {d.id}"}
-            | ({} if e is None else {"event": e.id}),
+            | ({} if worst is None else {"event": worst.id}),
             f"{d.kind} {d.id} (node {d.node}) sees {fmt(peak, 'pressure', u, 0)} {what}; rated "
             f"{fmt(rating, 'pressure', u, 0)}.",
-            measured=peak, limit=rating, unit="Pa",
+            measured=peak,
+            limit=rating,
+            unit="Pa",
             recommendation="protect the closing valves upstream of it with their arrestors, lower "
             "the static pressure (a pressure-reducing valve), or choose a device rated for the peak"
-            if e is not None else "lower the static pressure (a pressure-reducing valve) or "
+            if worst is not None
+            else "lower the static pressure (a pressure-reducing valve) or "
             "choose a device rated for it",
         )

@@ -47,7 +47,10 @@ from knockproof.transient.closure import law_code
 from knockproof.transient.grid import Grid
 from knockproof.transient.network import (
     GRAVITY_M_PER_S2,
+    GasCushion,
+    Reservoir,
     TransientNetwork,
+    Valve,
     friction_head_loss_m,
 )
 
@@ -180,7 +183,8 @@ def check_network(net: TransientNetwork) -> None:
             same = np.flatnonzero(np.asarray(net.pipe_upstream) == v)
             if same.size:
                 raise SimulationError(f"pipe {names[same[0]]!r} joins a node to itself")
-    for item in (*net.reservoirs, *net.valves, *net.arrestors):
+    placed: list[Reservoir | Valve | GasCushion] = [*net.reservoirs, *net.valves, *net.arrestors]
+    for item in placed:
         if not (0 <= item.node < n_nodes):
             raise SimulationError(f"{item!r}: node index out of range 0..{n_nodes - 1}")
 
@@ -485,8 +489,12 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     group, n_groups = _union_find_groups(n_nodes, up, down, grid.lumped)
     kept = np.flatnonzero(~grid.lumped)
     special = np.zeros(n_groups, dtype=bool)
-    for item in (*net.reservoirs, *net.valves, *net.arrestors):
-        special[group[item.node]] = True
+    for at_node in (
+        [x.node for x in net.reservoirs]
+        + [x.node for x in net.valves]
+        + [x.node for x in net.arrestors]
+    ):
+        special[group[at_node]] = True
     degree = np.bincount(group[up[kept]], minlength=n_groups) + np.bincount(
         group[down[kept]], minlength=n_groups
     )
@@ -524,7 +532,7 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     while np.isnan(head_g).any():  # a part of the network without a reservoir: trust given heads
         missing = int(np.flatnonzero(np.isnan(head_g))[0])
         member = int(np.flatnonzero(group == missing)[0])
-        extra = {i: float(head_g[i]) for i in np.flatnonzero(~np.isnan(head_g))}
+        extra = {int(i): float(head_g[i]) for i in np.flatnonzero(~np.isnan(head_g))}
         extra[missing] = float(given_head[member])
         head_g = _steady_group_heads(
             n_groups, gup0, gdown0, grid_loss, {**extra, **fixed}, kept_names

@@ -88,11 +88,11 @@ def tree_network(
         When the pipes do not form a tree reaching every outlet from the supply.
     """
     names: list[str] = list(node_order) if node_order is not None else []
-    for p in pipes:
-        for n in (p.upstream, p.downstream):
-            if n not in names:
-                names.append(n)
-    index = {n: i for i, n in enumerate(names)}
+    for spec in pipes:
+        for name in (spec.upstream, spec.downstream):
+            if name not in names:
+                names.append(name)
+    index = {name: i for i, name in enumerate(names)}
     if supply_node not in index:
         raise SimulationError(f"supply node {supply_node!r} is not on any pipe")
     n_nodes = len(names)
@@ -102,19 +102,19 @@ def tree_network(
         raise SimulationError(f"{len(pipes)} pipes on {n_nodes} nodes is not a tree")
     # orient from the supply, find each node's parent pipe
     adjacency: list[list[int]] = [[] for _ in range(n_nodes)]
-    for p in range(len(pipes)):
-        adjacency[up[p]].append(p)
-        adjacency[down[p]].append(p)
+    for k in range(len(pipes)):
+        adjacency[up[k]].append(k)
+        adjacency[down[k]].append(k)
     root = index[supply_node]
     parent_pipe = np.full(n_nodes, -1, dtype=np.int64)
     order = [root]
     seen = {root}
-    for n in order:
-        for p in adjacency[n]:
-            other = int(down[p] if up[p] == n else up[p])
+    for node in order:
+        for k in adjacency[node]:
+            other = int(down[k] if up[k] == node else up[k])
             if other not in seen:
                 seen.add(other)
-                parent_pipe[other] = p
+                parent_pipe[other] = k
                 order.append(other)
     if len(seen) != n_nodes:
         raise SimulationError("the pipes do not connect every node to the supply")
@@ -122,12 +122,12 @@ def tree_network(
     for o in outlets:
         demand[index[o.node]] += o.flow_m3_per_s
     flow = np.zeros(len(pipes))
-    for n in reversed(order[1:]):
-        p = parent_pipe[n]
-        sign = 1.0 if down[p] == n else -1.0
-        flow[p] = sign * demand[n]
-        parent = int(up[p] if down[p] == n else down[p])
-        demand[parent] += demand[n]
+    for node in reversed(order[1:]):
+        k = int(parent_pipe[node])
+        sign = 1.0 if down[k] == node else -1.0
+        flow[k] = sign * demand[node]
+        parent = int(up[k] if down[k] == node else down[k])
+        demand[parent] += demand[node]
     length = np.array([p.length_m for p in pipes], dtype=float)
     diameter = np.array([p.diameter_m for p in pipes], dtype=float)
     friction = np.array([p.friction_factor for p in pipes], dtype=float)

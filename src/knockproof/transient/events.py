@@ -357,8 +357,9 @@ def simulate_event(
         # again with no stub lumped (a finer grid instead).
         if "not a steady state" not in str(e) and "constant-head" not in str(e):
             raise
-        res = simulate(net, duration, record_nodes=record_nodes, time_step_s=time_step_s,
-                       lump_ratio=0.0)
+        res = simulate(
+            net, duration, record_nodes=record_nodes, time_step_s=time_step_s, lump_ratio=0.0
+        )
     on_path = [index[p.node] for p in event.path if p.node in index]
     path_peaks = {
         p.node: float(res.node_max_pressure_pa[index[p.node]])

@@ -81,9 +81,15 @@ more than the work of a small node or a short pipe. The general node equations a
 from __future__ import annotations
 
 import math
+from typing import Any
 
 import numpy as np
 from numba import njit
+
+_HELPER: dict[str, Any] = {"cache": True, "_nrt": False}
+"""numba options of the helper functions: cached, and compiled without reference counting (see the
+module docstring). ``_nrt`` is a private numba option: a numba upgrade may drop it (then remove it
+here; the helpers still work, somewhat slower)."""
 
 HEAD_LIMIT_M = 1.0e6
 """A head beyond this [m] (about 10 GPa) means the state has blown up."""
@@ -108,7 +114,7 @@ JUST_CLOSED = -1.0
 """Cavity-volume marker of a section whose cavity closed this step (liquid, two flows differ)."""
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def area_ratio(family, exponent, closure, start, t):  # pragma: no cover - compiled
     """Effective-area ratio of a valve; the same laws as closure.effective_area_ratio."""
     if family == 0:
@@ -123,7 +129,7 @@ def area_ratio(family, exponent, closure, start, t):  # pragma: no cover - compi
     return 1.0 - s**exponent
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _valve_head(cs, bs, v0, v1, cv, vz):  # pragma: no cover - compiled
     """Head at a node with valves v0..v1 given C_s, B_s; returns (H, dQ_valves/dH)."""
     if v1 == v0:
@@ -171,7 +177,7 @@ def _valve_head(cs, bs, v0, v1, cv, vz):  # pragma: no cover - compiled
     return head, dq
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _arrestor(cs, bs, v0, v1, cv, vz, dt, c0, n, k, z, hb, vol_old, q_old):  # pragma: no cover
     """Solve a node with a gas cushion: returns (H, Q_a, V_gas, converged)."""
     qa = q_old
@@ -194,7 +200,7 @@ def _arrestor(cs, bs, v0, v1, cv, vz, dt, c0, n, k, z, hb, vol_old, q_old):  # p
     return cs, qa, vol_old, False
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _special_node(
     gi,
     kind,
@@ -279,7 +285,7 @@ REBASE_STEPS = 4096
 back to its starting place every ``max(REBASE_STEPS, sections)`` steps."""
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _flat_block(Av, Bv, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - compiled
     """Update sections ``k0 .. k1-1`` in place: ``Av[k]``, ``Bv[k]`` hold the characteristics
     arriving at section ``k`` (``C_P``, ``C_M``) and receive the ones it sends (``C+``, ``C-``).
@@ -321,7 +327,7 @@ def _flat_block(Av, Bv, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - com
     return nbad
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _end_nodes(Av, Bv, n_dead_last, n_dead, n_pair, esec, einv, gbs, gh):  # pragma: no cover
     """Dead ends at the last section of their pipe (groups ``0 .. n_dead_last-1``), at the first
     (``.. n_dead-1``), and two-pipe junctions where a pipe's last section is followed by the next
@@ -352,7 +358,7 @@ def _end_nodes(Av, Bv, n_dead_last, n_dead, n_pair, esec, einv, gbs, gh):  # pra
         gh[i] = head
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _junctions(Av, Bv, g0, g1, g2, eptr, esec, einv, gbs, gh):  # pragma: no cover - compiled
     """Junctions of one arriving and two leaving pipes (groups ``g0 .. g1-1``) and of one arriving
     and three leaving (``g1 .. g2-1``), written out: heads into ``gh``, ghosts ``2 H - C`` into the
@@ -395,7 +401,7 @@ def _junctions(Av, Bv, g0, g1, g2, eptr, esec, einv, gbs, gh):  # pragma: no cov
         Av[k3] = two_h - c3
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _fans(Av, Bv, g0, g1, eptr, esec, einv, gbs, gh):  # pragma: no cover - compiled
     """Junctions of one arriving pipe and any number leaving (groups ``g0 .. g1-1``; the arriving
     pipe's end first), as :func:`_junctions` with a loop over the leaving pipes."""
@@ -416,7 +422,7 @@ def _fans(Av, Bv, g0, g1, eptr, esec, einv, gbs, gh):  # pragma: no cover - comp
             Av[k] = two_h - Bv[k]
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _other_nodes(S, g0, g1, eptr, ein0, eout0, edir, j, einv, gbs, gh):  # pragma: no cover
     """The other plain junctions ``g0 .. g1-1`` (pipe ends in the canonical order) on the storage
     ``S`` at step ``j`` of the current placement: pipe end ``e`` brings ``S[ein0[e] + edir[e] j]``
@@ -435,7 +441,7 @@ def _other_nodes(S, g0, g1, eptr, ein0, eout0, edir, j, einv, gbs, gh):  # pragm
             S[np.uint64(eout0[e] - d)] = two_h - S[np.uint64(ein0[e] + d)]
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _check_plain(gh, gthr, gmax, gmin, n_plain, chunk_bad):  # pragma: no cover - compiled
     """Peaks of the plain junctions whose head is at or above its threshold (vapour head, or +inf
     while the junction holds a cavity) and within :data:`HEAD_LIMIT_M`; per chunk of
@@ -463,7 +469,7 @@ def _check_plain(gh, gthr, gmax, gmin, n_plain, chunk_bad):  # pragma: no cover 
     return total
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _arrived(a, b, r):  # pragma: no cover - compiled
     """The characteristics ``(C_P, C_M)`` a liquid section received, from the two it sent, ``a =
     C_P - R' q|q|`` and ``b = C_M + R' q|q|`` with ``q = (C_P - C_M)/2``: ``a + b = C_P + C_M``, and
@@ -475,7 +481,7 @@ def _arrived(a, b, r):  # pragma: no cover - compiled
     return h + q, h - q
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _flagged(p, Av, Bv, off, nre, hv0, dhv, cav_on):  # pragma: no cover - compiled
     """Whether an interior section of liquid pipe p fell below its vapour head (or beyond the limit,
     or is not finite) in this step; after the flat update, ``Av[k] + Bv[k]`` is still ``C_P +
@@ -489,7 +495,7 @@ def _flagged(p, Av, Bv, off, nre, hv0, dhv, cav_on):  # pragma: no cover - compi
     return False
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _pipe_with_cavities(
     p,
     step,
@@ -577,7 +583,7 @@ def _pipe_with_cavities(
     return count
 
 
-@njit(cache=True, _nrt=False)
+@njit(**_HELPER)
 def _block_threshold(b, block_pipe, nre, hv0, dhv, cavcount, cav_on):  # pragma: no cover
     """Highest vapour head of an interior section of a liquid pipe in block ``b`` (a bound for
     the flat check; the pipes are then checked section by section)."""
@@ -738,9 +744,7 @@ def run(
         Bv = S[half + j : half + j + ns]
         # 1. the plain junctions: heads and ghosts; checked, and the general solver for those that
         # fail and for the reservoirs, valves and arrestors
-        _end_nodes(
-            Av, Bv, node_classes[0], node_classes[1], node_classes[2], esec_u, einv, gbs, gh
-        )
+        _end_nodes(Av, Bv, node_classes[0], node_classes[1], node_classes[2], esec_u, einv, gbs, gh)
         _junctions(
             Av, Bv, node_classes[2], node_classes[3], node_classes[4], eptr, esec_u, einv, gbs, gh
         )
