@@ -32,10 +32,9 @@ def test_nan_initial_flow_names_the_pipe():
         simulate(_net(pipe_initial_flow_m3_per_s=flow), 0.1)
 
 
-def test_blow_up_during_the_run_names_the_pipe():
-    # Explicit friction is unstable when 2 R|Q| > B (a perturbation is multiplied by 1 - 2R|Q|/B
-    # each
-    # step). Give branch-7 R|Q|/B = 10 at a creeping flow (small steady loss) and close the tap.
+def _unstable_branch():
+    """branch-7 with R|Q|/B = 10 at a creeping flow: explicit friction is unstable when 2 R|Q| > B
+    (a perturbation is multiplied by 1 - 2R|Q|/B each step); the tap closes."""
     g, a, d, dt = 9.80665, 1300.0, 0.02, 1e-3
     area = np.pi * d * d / 4
     flow = 1e-3 * area
@@ -50,8 +49,31 @@ def test_blow_up_during_the_run_names_the_pipe():
         ],
         "supply", 40.0, {}, [OutletSpec("tap", flow, 0.01)],
     )  # fmt: skip
+    return net, dt
+
+
+def test_blow_up_during_the_run_names_the_pipe():
+    net, dt = _unstable_branch()
     with pytest.raises(SimulationError, match=r"pipe 'branch-7'.*non-finite"):
         simulate(net, 0.5, time_step_s=dt)
+
+
+def test_blow_up_is_caught_whatever_step_the_run_ends_on():
+    # Every run long enough to blow up must say so, also when it ends a step or two after the heads
+    # pass the limit (before they overflow); shorter runs return heads within the limit.
+    net, dt = _unstable_branch()
+    failed_from = None
+    for steps in range(1, 30):
+        try:
+            res = simulate(net, steps * dt, time_step_s=dt)
+        except SimulationError as exc:
+            assert "pipe 'branch-7'" in str(exc)
+            failed_from = failed_from or steps
+            continue
+        assert failed_from is None, f"{steps} steps ran on after {failed_from} steps failed"
+        for heads in res.final_pipe_head_m.values():
+            assert np.all(np.abs(heads) <= 1e6)
+    assert failed_from is not None
 
 
 def test_unsteady_initial_heads_name_the_pipe():

@@ -4,6 +4,7 @@ dead end reflects a wave fully (its head is the arriving characteristic, no flow
 from __future__ import annotations
 
 import numpy as np
+import pytest
 
 from knockproof.transient.build import OutletSpec, PipeSpec, tree_network
 from knockproof.transient.solver import simulate
@@ -68,3 +69,17 @@ def test_arrived_characteristics_are_recovered_from_those_sent():
             f = r * q * abs(q)
             back = _arrived(cp - f, cm + f, r)
             np.testing.assert_allclose(back, (cp, cm), rtol=0, atol=1e-12)
+
+
+def test_friction_number_is_f_dt_v_over_2d():
+    # R'|q| per reach = R|Q|/B = f dx |Q| / (2 g D A^2) * g A / a = f dt V / (2 D) at Courant number 1
+    # (Wylie & Streeter 1993, eqs. 3-18 to 3-21): 0.02 * 1e-3 s * 2 m/s / (2 * 0.02 m) = 0.001.
+    d, v, dt = 0.02, 2.0, 1.0e-3
+    area = np.pi * d * d / 4
+    net = tree_network(
+        [PipeSpec("p", "S", "V", 10.0, d, 1000.0, 0.02)], "S", 60.0, {},
+        [OutletSpec("V", v * area, 0.0, "instant", start_time_s=1.0)],
+    )  # fmt: skip
+    res = simulate(net, 0.01, time_step_s=dt)
+    assert res.largest_wave_speed_adjustment == 0.0  # 10 m / (1000 m/s * 1 ms) = 10 reaches
+    assert res.stats["friction_number"] == pytest.approx(0.02 * dt * v / (2 * d), rel=1e-6)

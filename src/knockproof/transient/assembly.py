@@ -15,9 +15,9 @@ first; two-pipe junctions whose two pipe-end sections are neighbours; junctions 
 two leaving pipes; of one arriving and three leaving; of one arriving and more leaving; the others:
 a tree laid out from its supply has none), within a class by their number of
 pipe ends and then by their last section; then the groups holding a reservoir, valve or arrestor,
-in the order of their degree.
-Neither the pipe order nor the group numbers change a result: every sum at a node runs over its
-pipe ends in the canonical order, and the sums over all pipes or groups run in network order.
+by the first of their nodes' names. Neither the pipe order nor the group numbers change a result:
+every sum at a node runs over its pipe ends in the canonical order, the supplies' flows are summed
+in the order of those names, and the sums over all pipes or groups run in network order.
 
 The initial state is made exactly steady on the grid: group heads are rebuilt from the reservoir
 heads and the pipes' friction losses on the grid (``N R Q|Q|``, with the friction coefficient the
@@ -576,7 +576,13 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     last_section = np.zeros(n_groups, dtype=np.int64)
     last_section[e_group[by_group]] = e_section[by_group]  # ends of a group: sections increase
     second = degree * (total + 1) + last_section
-    second[special] = np.arange(n_groups)[special]
+    # the reservoirs, valves and arrestors by the first of their nodes' names (the kernel sums the
+    # supplies' flows in this order: it must not depend on the node numbering)
+    name_rank_node = np.empty(n_nodes, dtype=np.int64)
+    name_rank_node[sorted(range(n_nodes), key=net.node_names.__getitem__)] = np.arange(n_nodes)
+    first_name = np.full(n_groups, n_nodes, dtype=np.int64)
+    np.minimum.at(first_name, group, name_rank_node)
+    second[special] = first_name[special]
     renumber = np.empty(n_groups, dtype=np.int64)
     renumber[np.lexsort((second, kind))] = np.arange(n_groups)
     old_of_new = np.argsort(renumber)

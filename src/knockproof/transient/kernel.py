@@ -63,14 +63,15 @@ against their vapour heads in one vectorised pass that also keeps the peaks; tho
 the reservoirs, valves and arrestors) go to the general node solver, which writes its own ghosts;
 (3) every section, block by block (consecutive pipes of about
 :data:`~knockproof.transient.assembly.BLOCK_SECTIONS` sections), in one flat loop that the compiler
-vectorises, counting the sections below a bound of the block's vapour heads; (4) the DVCM update of
-the pipes that hold cavities or that the count in (3) flags: the characteristics a section received
-are recovered exactly enough from the two it sent (:func:`_arrived`), and a section that stays
+vectorises, counting the sections below a bound of the block's vapour heads or beyond
+:data:`HEAD_LIMIT_M`; (4) the DVCM update of the pipes that hold cavities (what their sections
+receive is kept before (3)) or that the count in (3) flags (in that first step, the characteristics
+a section received are recovered from the two it sent, :func:`_arrived`); a section that stays
 liquid keeps what the flat loop wrote. Sums at a node run over its pipe ends in a canonical order,
 so the layout order changes no result; the grouping into blocks and classes changes no arithmetic
 either. The node heads are checked every step (a head beyond :data:`HEAD_LIMIT_M` or not finite
-stops the run and names the node), the interior heads for their vapour heads and for non-finite
-values (which stop the run and name the pipe).
+stops the run and names the node), the interior heads for their vapour heads and against the same
+limit (a head or a characteristic sent beyond it, or not finite, stops the run and names the pipe).
 
 The helper functions are compiled without numba's reference counting (``_nrt=False``; they
 allocate nothing): with it, each array passed costs atomic increments and decrements per call,
@@ -93,6 +94,9 @@ here; the helpers still work, somewhat slower)."""
 
 HEAD_LIMIT_M = 1.0e6
 """A head beyond this [m] (about 10 GPa) means the state has blown up."""
+
+SENT_LIMIT_M = 4.0 * HEAD_LIMIT_M
+"""A characteristic sent beyond this [m] means the same (it is a head plus a flow in head units)."""
 
 # stats (int64) slots
 ST_COLLAPSES = 0
@@ -289,10 +293,9 @@ back to its starting place every ``max(REBASE_STEPS, sections)`` steps."""
 def _flat_block(Av, Bv, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - compiled
     """Update sections ``k0 .. k1-1`` in place: ``Av[k]``, ``Bv[k]`` hold the characteristics
     arriving at section ``k`` (``C_P``, ``C_M``) and receive the ones it sends (``C+``, ``C-``).
-    Returns how many sections fall below ``thr`` or are not finite (a pipe's end sections, which
-    carry their node's head, are counted too: they only make the caller look at the block's pipes
-    more closely). Heads that grow without bound are caught here once they turn non-finite, and
-    at the nodes against :data:`HEAD_LIMIT_M` every step."""
+    Returns how many sections fall below ``thr`` or beyond :data:`HEAD_LIMIT_M` or are not finite
+    (a pipe's end sections, which carry their node's head, are counted too: they only make the
+    caller look at the block's pipes more closely)."""
     m = k1 - k0
     if m <= 0:
         return 0
@@ -302,8 +305,9 @@ def _flat_block(Av, Bv, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - com
     r = sr[k0:k1]
     nbad = 0
     # the outgoing characteristics are C_P - R' q|q| and C_M + R' q|q| (H + q = C_P, H - q = C_M);
-    # the head is checked as C_P + C_M = 2 H against twice the bound (exact scaling)
+    # the head is checked as C_P + C_M = 2 H against twice the bounds (exact scaling)
     lo = 2.0 * thr
+    hi = 2.0 * HEAD_LIMIT_M
     if write_h:
         h_out = Hf[k0:k1]
         for i in range(m):
@@ -314,7 +318,8 @@ def _flat_block(Av, Bv, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - com
             a[i] = cp - f
             b[i] = cm + f
             h_out[i] = 0.5 * (cp + cm)
-            nbad += not (cp + cm >= lo)
+            s = cp + cm
+            nbad += not (s >= lo and s <= hi)
     else:
         for i in range(m):
             cp = a[i]
@@ -323,7 +328,8 @@ def _flat_block(Av, Bv, sr, k0, k1, thr, Hf, write_h):  # pragma: no cover - com
             f = np.float64(r[i]) * q * abs(q)
             a[i] = cp - f
             b[i] = cm + f
-            nbad += not (cp + cm >= lo)
+            s = cp + cm
+            nbad += not (s >= lo and s <= hi)
     return nbad
 
 
@@ -474,7 +480,10 @@ def _arrived(a, b, r):  # pragma: no cover - compiled
     """The characteristics ``(C_P, C_M)`` a liquid section received, from the two it sent, ``a =
     C_P - R' q|q|`` and ``b = C_M + R' q|q|`` with ``q = (C_P - C_M)/2``: ``a + b = C_P + C_M``, and
     ``e = (a - b)/2 = q - R' q|q|`` gives ``q = 2 e/(1 + sqrt(1 - 4 R'|e|))`` (the root that tends
-    to ``e`` as ``R'`` goes to 0; ``4 R'|e|`` stays far below 1 in building piping)."""
+    to ``e`` as ``R'`` goes to 0). The map from ``q`` to ``e`` turns back at ``R'|q| = 1/2``, so this
+    holds while ``R'|q| = f dt V/(2 D)`` stays under 1/2: in building piping it is about 0.002 at
+    1 ms. It is used only in the step where a pipe first falls below its vapour head; a pipe that
+    holds cavities keeps what it received (``Sa``, ``Sb`` in :func:`run`)."""
     e = 0.5 * (a - b)
     q = 2.0 * e / (1.0 + math.sqrt(max(1.0 - 4.0 * r * abs(e), 0.0)))
     h = 0.5 * (a + b)
@@ -485,12 +494,17 @@ def _arrived(a, b, r):  # pragma: no cover - compiled
 def _flagged(p, Av, Bv, off, nre, hv0, dhv, cav_on):  # pragma: no cover - compiled
     """Whether an interior section of liquid pipe p fell below its vapour head (or beyond the limit,
     or is not finite) in this step; after the flat update, ``Av[k] + Bv[k]`` is still ``C_P +
-    C_M``."""
+    C_M`` (to rounding), and the two values sent are bounded as well (where friction runs away,
+    their sum cancels)."""
     o = off[p]
     for k in range(o + 1, o + nre[p]):
-        h = 0.5 * (Av[k] + Bv[k])
+        a = Av[k]
+        b = Bv[k]
+        h = 0.5 * (a + b)
         thr = hv0[p] + dhv[p] * (k - o) if cav_on else -HEAD_LIMIT_M
-        if not (h >= thr and h <= HEAD_LIMIT_M):
+        if not (
+            h >= thr and h <= HEAD_LIMIT_M and abs(a) <= SENT_LIMIT_M and abs(b) <= SENT_LIMIT_M
+        ):
             return True
     return False
 
@@ -504,6 +518,9 @@ def _pipe_with_cavities(
     cav_on,
     Av,
     Bv,
+    kept,
+    Sa,
+    Sb,
     Vc,
     Qcu,
     Qcd,
@@ -522,8 +539,9 @@ def _pipe_with_cavities(
     """DVCM update of the interior of pipe ``p``, after the flat update treated it as liquid;
     returns its number of open (or closing) cavities.
 
-    The characteristics each section received are recovered by :func:`_arrived`; a section that
-    stays liquid keeps what the flat update wrote. Flows are scaled (``q = B Q``); the cavity volume
+    The characteristics each section received are in ``Sa``, ``Sb`` where ``kept`` (a pipe that
+    held cavities before this step), else recovered by :func:`_arrived`; a section that stays
+    liquid keeps what the flat update wrote. Flows are scaled (``q = B Q``); the cavity volume
     uses real flows ``(qd - qu)/B``. A section with a cavity keeps its two flows in ``Qcu``,
     ``Qcd``; its outgoing characteristics use the downstream-side flow for ``C+`` and the
     upstream-side flow for ``C-``.
@@ -538,14 +556,18 @@ def _pipe_with_cavities(
         v_old = Vc[k]
         if v_old < 0.0:  # JUST_CLOSED last step: liquid now
             v_old = 0.0
-        h2 = Av[k] + Bv[k]
-        if not (abs(h2) <= 2.0 * HEAD_LIMIT_M):
+        a = Sa[k] if kept else Av[k]
+        b = Sb[k] if kept else Bv[k]
+        h2 = a + b
+        if not (
+            abs(h2) <= 2.0 * HEAD_LIMIT_M and abs(a) <= SENT_LIMIT_M and abs(b) <= SENT_LIMIT_M
+        ):
             stats[ST_STATUS] = STATUS_PIPE_NONFINITE
             stats[ST_WHERE] = p
             return count
         hv = hv0[p] + dhv[p] * j
         if cav_on and (v_old > 0.0 or 0.5 * h2 < hv - 1e-6):
-            cp, cm = _arrived(Av[k], Bv[k], r)
+            cp, cm = (a, b) if kept else _arrived(a, b, r)
             qu = cp - hv
             qd = hv - cm
             old_rate = (Qcd[k] - Qcu[k]) * inv_b if v_old > 0.0 else 0.0
@@ -675,6 +697,8 @@ def run(
     S[span + 1 : span + 1 + ns] = state0[:ns]
     S[half : half + ns] = state0[ns:]
     Vc = np.zeros(ns)
+    Sa = np.zeros(ns)  # what the sections of pipes holding cavities received, this step
+    Sb = np.zeros(ns)
     Qcu = np.zeros(ns)
     Qcd = np.zeros(ns)
     Hf = np.zeros(ns)
@@ -840,7 +864,12 @@ def run(
             stats[ST_STEP] = step
             break
         # 2. every section, block by block (a block's threshold bounds the vapour heads of its
-        # liquid pipes)
+        # liquid pipes); first, what the pipes holding cavities receive is kept for step 3
+        for m in range(n_active):
+            p = active[m]
+            for k in range(off[p] + 1, off[p] + nre[p]):
+                Sa[k] = Av[k]
+                Sb[k] = Bv[k]
         nbad = 0
         for b in range(n_blocks):
             k0 = off[block_pipe[b]]
@@ -881,6 +910,9 @@ def run(
                     cav_on,
                     Av,
                     Bv,
+                    cavcount[p] > 0,
+                    Sa,
+                    Sb,
                     Vc,
                     Qcu,
                     Qcd,
