@@ -10,12 +10,11 @@
 
 import numpy as np
 import pytest
+from transient_nets import permuted, stored_volume_change
 
-from knockproof.transient import TransientNetwork, simulate
+from knockproof.transient import simulate
 from knockproof.transient.build import CushionSpec, OutletSpec, PipeSpec, tree_network
-from knockproof.transient.network import Reservoir, Valve
-
-G = 9.80665
+from knockproof.transient.network import Reservoir
 
 PIPES = [
     PipeSpec("main", "S", "J1", 20.0, 0.032, 1250.0, 0.02),
@@ -39,22 +38,6 @@ def _tree(head):
     )
 
 
-def _stored_volume_change(net, result):
-    total = 0.0
-    for p, name in enumerate(net.pipe_names):
-        final = result.final_pipe_head_m[name]
-        n = len(final) - 1
-        initial = np.linspace(
-            net.node_initial_head_m[net.pipe_upstream[p]],
-            net.node_initial_head_m[net.pipe_downstream[p]],
-            n + 1,
-        )  # steady friction gradient is linear
-        area = np.pi * net.pipe_diameter_m[p] ** 2 / 4
-        speed = result.wave_speed_used_m_per_s[p]
-        total += G * area / speed**2 * np.trapezoid(final - initial, dx=net.pipe_length_m[p] / n)
-    return total
-
-
 @pytest.mark.parametrize("head", [35.0, 80.0])  # 35 m: cavities at the top; 80 m: fewer
 def test_volume_is_conserved(head):
     net = _tree(head)
@@ -62,51 +45,11 @@ def test_volume_is_conserved(head):
     st = result.stats
     delivered = st["supply_volume_m3"] - st["valve_volume_m3"].sum()
     gas_taken = st["gas_volume_initial_m3"].sum() - st["gas_volume_final_m3"].sum()
-    balance = _stored_volume_change(net, result) + gas_taken - st["cavity_volume_m3"]
+    balance = stored_volume_change(net, result) + gas_taken - st["cavity_volume_m3"]
     scale = st["valve_volume_m3"].sum() + abs(gas_taken) + st["max_cavity_volume_m3"]
     # tolerance chosen: time integration of the boundary flows (trapezoid) against the discrete
     # state; measured below 1e-5 of the volumes moved
     assert abs(delivered - balance) < 1e-4 * scale
-
-
-def _permuted(net: TransientNetwork, node_perm, pipe_perm) -> TransientNetwork:
-    new_of_old = np.empty_like(node_perm)
-    new_of_old[node_perm] = np.arange(len(node_perm))
-    return TransientNetwork(
-        node_names=tuple(net.node_names[i] for i in node_perm),
-        node_elevation_m=net.node_elevation_m[node_perm],
-        pipe_names=tuple(net.pipe_names[i] for i in pipe_perm),
-        pipe_upstream=new_of_old[net.pipe_upstream[pipe_perm]],
-        pipe_downstream=new_of_old[net.pipe_downstream[pipe_perm]],
-        pipe_length_m=net.pipe_length_m[pipe_perm],
-        pipe_diameter_m=net.pipe_diameter_m[pipe_perm],
-        pipe_wave_speed_m_per_s=net.pipe_wave_speed_m_per_s[pipe_perm],
-        pipe_friction_factor=net.pipe_friction_factor[pipe_perm],
-        pipe_initial_flow_m3_per_s=net.pipe_initial_flow_m3_per_s[pipe_perm],
-        node_initial_head_m=net.node_initial_head_m[node_perm],
-        reservoirs=tuple(Reservoir(int(new_of_old[r.node]), r.head_m) for r in net.reservoirs),
-        valves=tuple(
-            Valve(
-                int(new_of_old[v.node]),
-                v.initial_flow_m3_per_s,
-                v.initial_head_drop_m,
-                v.closure_time_s,
-                v.law,
-                v.start_time_s,
-            )
-            for v in reversed(net.valves)
-        ),  # fmt: skip
-        arrestors=tuple(
-            type(a)(
-                int(new_of_old[a.node]),
-                a.gas_volume_m3,
-                a.gas_pressure_abs_pa,
-                a.polytropic_exponent,
-                a.throat_loss_s2_per_m5,
-            )
-            for a in net.arrestors
-        ),  # fmt: skip
-    )
 
 
 def test_relabelling_leaves_results_unchanged():
@@ -114,7 +57,7 @@ def test_relabelling_leaves_results_unchanged():
     rng = np.random.default_rng(7)
     node_perm = rng.permutation(net.n_nodes)
     pipe_perm = rng.permutation(net.n_pipes)
-    other = _permuted(net, node_perm, pipe_perm)
+    other = permuted(net, node_perm, pipe_perm)
     a = simulate(net, 0.3, time_step_s=2e-4, record_nodes=[3])
     b = simulate(
         other, 0.3, time_step_s=2e-4, record_nodes=[int(np.flatnonzero(node_perm == 3)[0])]
@@ -159,7 +102,7 @@ def test_relabelling_leaves_the_supply_total_unchanged_with_several_supplies():
     for seed in range(6):
         rng = np.random.default_rng(seed)
         node_perm = rng.permutation(net.n_nodes)
-        other = _permuted(net, node_perm, rng.permutation(net.n_pipes))
+        other = permuted(net, node_perm, rng.permutation(net.n_pipes))
         lay = build_layout(other, _grid(other, 2e-4, 10.0, 0.5, 0.1, 16.0), cavitation=True)
         order = [g for g in range(lay.group_count) if lay.group_kind[g] == 1]
         names = [min(other.node_names[n] for n in np.flatnonzero(lay.node_group == g)) for g in order]
