@@ -804,33 +804,38 @@ def run(
             bs = gbs[gi]
             cs = scb * bs
             kind = gkind[gi]
-            head = _special_node(
-                gi,
-                kind,
-                cs,
-                bs,
-                step,
-                dt,
-                psi,
-                cav_on,
-                gfixed,
-                ghv,
-                vptr,
-                vz,
-                cvb,
-                garr,
-                ac0,
-                an,
-                ak,
-                az,
-                avol,
-                aq,
-                hb,
-                gvol,
-                gnet,
-                gcav,
-                acc,
-                stats,
+            # a constant-head node needs no call (an event's zone has several: its cut nodes)
+            head = (
+                gfixed[gi]
+                if kind == 1
+                else _special_node(
+                    gi,
+                    kind,
+                    cs,
+                    bs,
+                    step,
+                    dt,
+                    psi,
+                    cav_on,
+                    gfixed,
+                    ghv,
+                    vptr,
+                    vz,
+                    cvb,
+                    garr,
+                    ac0,
+                    an,
+                    ak,
+                    az,
+                    avol,
+                    aq,
+                    hb,
+                    gvol,
+                    gnet,
+                    gcav,
+                    acc,
+                    stats,
+                )
             )
             if not (abs(head) <= HEAD_LIMIT_M):
                 stats[ST_STATUS] = STATUS_NODE_NONFINITE
