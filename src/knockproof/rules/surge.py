@@ -195,8 +195,9 @@ def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Findin
             measured=peak,
             limit=rating,
             unit="Pa",
-            recommendation="protect the closing valves upstream of it with their arrestors, lower "
-            "the static pressure (a pressure-reducing valve), or choose a device rated for the peak"
+            recommendation="protect the closing valves whose surges reach it with their arrestors, "
+            "lower the static pressure (a pressure-reducing valve), or choose a device rated for "
+            "the peak"
             if worst is not None
             else "lower the static pressure (a pressure-reducing valve) or "
             "choose a device rated for it",
