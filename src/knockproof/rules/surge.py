@@ -162,27 +162,30 @@ def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Findin
     for its worst case."""
     u = ctx.unit_system
     factor = float(params["rating_factor"])
-    at: dict[str, list[tuple[float, EventResult | None]]] = {}
-    for d in ctx.building.devices:
-        if d.rating_pa is None:
-            continue
-        for n in _device_nodes(ctx, d.node, d.kind):
-            if n in ctx.nodes:
-                at.setdefault(n, []).append((ctx.nodes[n].static_pressure_pa, None))
+    rated = [
+        (d, d.rating_pa, _device_nodes(ctx, d.node, d.kind))
+        for d in ctx.building.devices
+        if d.rating_pa is not None
+    ]
+    # node -> (pressure [Pa], the closure that brings it, None for static pressure)
+    at: dict[str, list[tuple[float, EventResult | None]]] = {
+        n: [(ctx.nodes[n].static_pressure_pa, None)]
+        for _, _, nodes in rated
+        for n in nodes
+        if n in ctx.nodes
+    }
     if not at:
         return
     for e, peak_valve, protected in _events(ctx):
         for k, pt in enumerate(e.path):
             if pt.node in at and (k == 0 or not protected):
                 at[pt.node].append((peak_valve if k == 0 else pt.peak_pressure_pa, e))
-    for d in ctx.building.devices:
-        if d.rating_pa is None:
-            continue
-        cases = [c for n in _device_nodes(ctx, d.node, d.kind) for c in at.get(n, ())]
+    for d, rating_pa, nodes in rated:
+        cases = [c for n in nodes for c in at.get(n, ())]
         if not cases:
             continue
         peak, worst = max(cases, key=lambda c: c[0])
-        rating = d.rating_pa * factor
+        rating = rating_pa * factor
         if peak <= rating * (1 + 1e-9):
             continue
         what = "at rest (static pressure)" if worst is None else f"when {worst.id} closes"

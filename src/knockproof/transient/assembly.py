@@ -36,7 +36,6 @@ simulating the same event with other gas volumes.
 
 from __future__ import annotations
 
-import math
 from collections import OrderedDict
 from dataclasses import dataclass, replace
 
@@ -52,6 +51,7 @@ from knockproof.transient.network import (
     TransientNetwork,
     Valve,
     friction_head_loss_m,
+    steady_heads,
 )
 
 HEAD_TOLERANCE_M = 1e-3
@@ -208,41 +208,6 @@ def _union_find_groups(n_nodes: int, up: np.ndarray, down: np.ndarray, lumped: n
         label = new
     _, group = np.unique(label, return_inverse=True)
     return group.astype(np.int64), int(group.max()) + 1
-
-
-def _steady_group_heads(
-    n_groups: int,
-    gup: np.ndarray,
-    gdown: np.ndarray,
-    loss: np.ndarray,
-    fixed: dict[int, float],
-    names: tuple[str, ...],
-) -> np.ndarray:
-    """:func:`~knockproof.transient.network.steady_heads` on plain Python floats: the same walk and
-    the same additions, hence the same heads to the last bit, without numpy scalar overhead."""
-    head = [math.nan] * n_groups
-    adjacency: list[list[tuple[int, int, float]]] = [[] for _ in range(n_groups)]
-    for p, (u, d, dh) in enumerate(zip(gup.tolist(), gdown.tolist(), loss.tolist(), strict=True)):
-        adjacency[u].append((p, d, -dh))
-        adjacency[d].append((p, u, dh))
-    stack: list[int] = []
-    for node, h in fixed.items():
-        head[node] = float(h)
-        stack.append(node)
-    while stack:
-        n = stack.pop()
-        for p, other, dh in adjacency[n]:
-            h = head[n] + dh
-            if head[other] != head[other]:
-                head[other] = h
-                stack.append(other)
-            elif abs(head[other] - h) > HEAD_TOLERANCE_M:
-                raise SimulationError(
-                    f"pipe {names[p]!r}: the initial flows are not a steady state: heads along two "
-                    f"paths differ by {abs(head[other] - h):.4g} m at its ends (expected at most "
-                    f"{HEAD_TOLERANCE_M:g} m)"
-                )
-    return np.array(head)
 
 
 def _preorder(n_groups: int, gup: list[int], gdown: list[int], root: int) -> np.ndarray:
@@ -528,14 +493,28 @@ def _build_layout(net: TransientNetwork, grid: Grid, cavitation: bool) -> Layout
     r_scaled_kept = (r_kept / b_kept**2).astype(np.float32).astype(np.float64)
     r_coef_kept = r_scaled_kept * b_kept**2
     grid_loss = reaches_k * r_coef_kept * flow[kept] * np.abs(flow[kept])
-    head_g = _steady_group_heads(n_groups, gup0, gdown0, grid_loss, fixed, kept_names)
+    head_g = steady_heads(
+        n_groups,
+        gup0,
+        gdown0,
+        grid_loss,
+        fixed,
+        pipe_names=kept_names,
+        tolerance_m=HEAD_TOLERANCE_M,
+    )
     while np.isnan(head_g).any():  # a part of the network without a reservoir: trust given heads
         missing = int(np.flatnonzero(np.isnan(head_g))[0])
         member = int(np.flatnonzero(group == missing)[0])
         extra = {int(i): float(head_g[i]) for i in np.flatnonzero(~np.isnan(head_g))}
         extra[missing] = float(given_head[member])
-        head_g = _steady_group_heads(
-            n_groups, gup0, gdown0, grid_loss, {**extra, **fixed}, kept_names
+        head_g = steady_heads(
+            n_groups,
+            gup0,
+            gdown0,
+            grid_loss,
+            {**extra, **fixed},
+            pipe_names=kept_names,
+            tolerance_m=HEAD_TOLERANCE_M,
         )
 
     # layout order of the pipes; final group numbers (see the module docstring)

@@ -27,6 +27,7 @@ References: E. B. Wylie and V. L. Streeter, *Fluid Transients in Systems*, Prent
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -241,24 +242,26 @@ def steady_heads(
         losses do not sum to zero, or two fixed heads the flows cannot join); the message names the
         pipe.
     """
-    up = np.asarray(pipe_upstream, dtype=np.int64)
-    down = np.asarray(pipe_downstream, dtype=np.int64)
-    loss = np.asarray(pipe_loss_m, dtype=float)
+    up = np.asarray(pipe_upstream, dtype=np.int64).tolist()
+    down = np.asarray(pipe_downstream, dtype=np.int64).tolist()
+    loss = np.asarray(pipe_loss_m, dtype=float).tolist()
     names = pipe_names or tuple(f"#{i}" for i in range(len(up)))
-    head = np.full(n_nodes, np.nan)
+    # plain Python floats (the same additions as numpy's, without its per-scalar overhead: the
+    # layout calls this for every simulated event)
+    head = [math.nan] * n_nodes
     adjacency: list[list[tuple[int, int, float]]] = [[] for _ in range(n_nodes)]
-    for p in range(len(up)):
-        adjacency[up[p]].append((p, int(down[p]), -loss[p]))
-        adjacency[down[p]].append((p, int(up[p]), loss[p]))
+    for p, (u, d, dh) in enumerate(zip(up, down, loss, strict=True)):
+        adjacency[u].append((p, d, -dh))
+        adjacency[d].append((p, u, dh))
     stack: list[int] = []
     for node, h in fixed_heads.items():
-        head[node] = h
+        head[node] = float(h)
         stack.append(node)
     while stack:
         n = stack.pop()
         for p, other, dh in adjacency[n]:
             h = head[n] + dh
-            if np.isnan(head[other]):
+            if head[other] != head[other]:  # NaN: not reached yet
                 head[other] = h
                 stack.append(other)
             elif abs(head[other] - h) > tolerance_m:
@@ -267,4 +270,4 @@ def steady_heads(
                     f"paths differ by {abs(head[other] - h):.4g} m at its ends (expected at most "
                     f"{tolerance_m:g} m)"
                 )
-    return head
+    return np.array(head)
