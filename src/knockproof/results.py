@@ -140,6 +140,36 @@ class EventResult:
     simulated_min_pressure_pa: float | None = None
     cavity: bool | None = None
     simulated_peak_with_arrestors_pa: float | None = None
+    # -- the closed-form bound over the valve's whole reach (analysis/events.py) ------------------
+    #: Closed-form bound at every node the wave reaches within the event's horizon, the path's
+    #: nodes included (dead-end branches off the path too): static + bounded surge per node.
+    reach: tuple[PathPoint, ...] = ()
+    #: The node of ``reach`` (or of ``path``) with the highest bounded peak, and that peak [Pa].
+    bound_worst_node: str | None = None
+    bound_worst_node_pressure_pa: float | None = None
+    # -- the simulation of the event (transient/run.py) -------------------------------------------
+    #: Highest simulated pressure anywhere in the simulated network (cavity collapses included),
+    #: where and when; the first-cycle (before any collapse) highest anywhere.
+    simulated_worst_node: str | None = None
+    simulated_worst_node_pressure_pa: float | None = None
+    simulated_worst_node_time_s: float | None = None
+    simulated_first_cycle_worst_pressure_pa: float | None = None
+    #: (node, highest simulated gauge pressure [Pa]) for every node the simulation covered.
+    simulated_node_peaks: tuple[tuple[str, float], ...] = ()
+    #: True when the simulated network held everything whose inertia and reflections set the peak
+    #: (see docs/simulation.md); only then may a rule trust the simulation over the bound.
+    simulation_covers_event: bool | None = None
+    #: Largest relative change of a pipe's wave speed made by the grid [-] (signed max magnitude).
+    wave_speed_adjustment_max: float | None = None
+    #: Closure time the simulation used [s] (differs from ``closure_time_s`` below the floor).
+    simulated_closure_time_s: float | None = None
+    #: With the scheduled arrestors: the highest simulated pressure anywhere, where; per node.
+    simulated_worst_node_with_arrestors: str | None = None
+    simulated_worst_node_with_arrestors_pa: float | None = None
+    simulated_node_peaks_with_arrestors: tuple[tuple[str, float], ...] = ()
+    #: True when the scheduled arrestors raise the simulated peak (the gas spring rings with the
+    #: column); reports say so.
+    arrestor_raises_peak: bool | None = None
 
     @property
     def fixture(self) -> str:
