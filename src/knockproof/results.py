@@ -136,6 +136,9 @@ class EventResult:
     peak_pressure_pa: float
     path: tuple[PathPoint, ...]
     simultaneous: bool = False
+    #: The trade's quick-closing valve (needs an arrestor); False for a valve screened only because
+    #: its closure time is at or under the critical time (a fast manual valve).
+    quick_closing: bool = True
     simulated_peak_pressure_pa: float | None = None
     simulated_min_pressure_pa: float | None = None
     cavity: bool | None = None
