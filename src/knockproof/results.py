@@ -205,3 +205,97 @@ class Analysis:
             if n.id == node_id:
                 return n
         raise KeyError(node_id)
+
+
+Figure = Literal["simulated", "closed-form", "simulated with arrestors"]
+
+
+@dataclass(frozen=True)
+class GoverningPeak:
+    """The peak a verdict on one event uses, where it is, and why that figure.
+
+    Attributes
+    ----------
+    node : str
+        Node where the peak is highest.
+    pressure_pa : float
+        That peak (gauge) [Pa].
+    figure : "simulated", "closed-form" or "simulated with arrestors"
+        Which calculation the figure comes from.
+    reason : str
+        One line saying why this figure governs (shown in every report).
+    """
+
+    node: str
+    pressure_pa: float
+    figure: Figure
+    reason: str
+
+
+def _closed_form_worst(e: EventResult) -> tuple[str, float]:
+    if e.bound_worst_node is not None and e.bound_worst_node_pressure_pa is not None:
+        return e.bound_worst_node, e.bound_worst_node_pressure_pa
+    best = (e.node, e.peak_pressure_pa)
+    for p in e.reach or e.path:
+        if p.peak_pressure_pa > best[1]:
+            best = (p.node, p.peak_pressure_pa)
+    return best
+
+
+def governing_peak(e: EventResult, *, with_arrestors: bool = False) -> GoverningPeak | None:
+    """The peak a rule judges for event ``e`` (a selection, no physics).
+
+    Without arrestors: the closed-form bound where no simulation ran; the simulated peak where the
+    simulation covered the whole event (``simulation_covers_event``); otherwise the larger of the
+    two (a simulation that may have cut away part of the event is never trusted below the bound).
+    With arrestors only a simulation knows the peak: None where none ran.
+    """
+    if with_arrestors:
+        if e.simulated_worst_node_with_arrestors_pa is not None:
+            node = e.simulated_worst_node_with_arrestors or e.node
+            return GoverningPeak(node, e.simulated_worst_node_with_arrestors_pa,
+                                 "simulated with arrestors", "simulated with the arrestors in place")
+        if e.simulated_peak_with_arrestors_pa is not None:
+            return GoverningPeak(e.node, e.simulated_peak_with_arrestors_pa,
+                                 "simulated with arrestors",
+                                 "simulated with the arrestors in place (at the valve)")
+        return None
+    cf_node, cf = _closed_form_worst(e)
+    if e.simulated_worst_node_pressure_pa is not None:
+        sim_node, sim = e.simulated_worst_node or e.node, e.simulated_worst_node_pressure_pa
+    elif e.simulated_peak_pressure_pa is not None:
+        sim_node, sim = e.node, e.simulated_peak_pressure_pa
+    else:
+        return GoverningPeak(cf_node, cf, "closed-form", "closed-form bound; no simulation ran")
+    if e.simulation_covers_event:
+        return GoverningPeak(sim_node, sim, "simulated",
+                             "simulated; the simulation covered the whole event")
+    if cf >= sim:
+        return GoverningPeak(cf_node, cf, "closed-form",
+                             "closed-form bound, the larger figure: the simulation did not cover "
+                             "the whole event")
+    return GoverningPeak(sim_node, sim, "simulated",
+                         "simulated, the larger figure: the simulation did not cover the whole "
+                         "event")
+
+
+def node_peaks(e: EventResult, *, with_arrestors: bool = False) -> dict[str, tuple[float, Figure]]:
+    """Peak (gauge) [Pa] and its figure at every node the event reaches, chosen node by node as
+    :func:`governing_peak` chooses for the worst node. With arrestors: the simulated peaks alone."""
+    if with_arrestors:
+        sim_w = dict(e.simulated_node_peaks_with_arrestors)
+        if not sim_w and e.simulated_peak_with_arrestors_pa is not None:
+            sim_w = {e.node: e.simulated_peak_with_arrestors_pa}
+        return {n: (p, "simulated with arrestors") for n, p in sim_w.items()}
+    closed: dict[str, float] = {}
+    for p in (*e.path, *e.reach):
+        closed[p.node] = max(p.peak_pressure_pa, closed.get(p.node, -math.inf))
+    sim = dict(e.simulated_node_peaks)
+    if not sim and e.simulated_peak_pressure_pa is not None:
+        sim = {e.node: e.simulated_peak_pressure_pa}
+    out: dict[str, tuple[float, Figure]] = {n: (p, "closed-form") for n, p in closed.items()}
+    for n, p in sim.items():
+        c = closed.get(n)
+        if c is None or e.simulation_covers_event or p > c:
+            out[n] = (p, "simulated")
+    return out

@@ -50,6 +50,10 @@ class Finding:
         ``"fixture units"``; ``""`` when there is no number.
     recommendation : str
         What to do about it.
+    figure : str
+        For a finding on a pressure: which calculation the number comes from and why
+        (``"simulated; the simulation covered the whole event"``, ``"closed-form bound; ..."``);
+        empty otherwise.
     """
 
     rule: str
@@ -60,6 +64,7 @@ class Finding:
     limit: float | None = None
     unit: str = ""
     recommendation: str = ""
+    figure: str = ""
 
     @property
     def description(self) -> str:
@@ -155,7 +160,8 @@ def new_finding(
     limit: float | None = None,
     unit: str = "",
     recommendation: str = "",
+    figure: str = "",
 ) -> Finding:
     """A finding of ``rule_id`` at the rule's default severity (the engine applies overrides)."""
     return Finding(rule_id, _REGISTRY[rule_id].severity, where, message, measured, limit, unit,
-                   recommendation)
+                   recommendation, figure)

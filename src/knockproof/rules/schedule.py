@@ -55,7 +55,7 @@ from knockproof.catalog import arrestor_class_for_units, get_fixture_kind
 from knockproof.catalog.arrestors import ARRESTOR_SYMBOLS
 from knockproof.model.building import Fixture
 from knockproof.physics import gas_cushion
-from knockproof.results import EventResult
+from knockproof.results import EventResult, governing_peak
 from knockproof.rules.context import Context
 
 Position = Literal["at-valve", "branch-end", "branch-middle"]
@@ -178,9 +178,9 @@ class Schedule:
 
 
 def event_peak_pa(e: EventResult) -> float:
-    """The event's peak (gauge) [Pa]: the simulated one where a simulation ran, else closed form."""
-    return e.simulated_peak_pressure_pa if e.simulated_peak_pressure_pa is not None \
-        else e.peak_pressure_pa
+    """The event's governing peak (gauge) [Pa] (:func:`knockproof.results.governing_peak`)."""
+    g = governing_peak(e)
+    return e.peak_pressure_pa if g is None else g.pressure_pa
 
 
 def fixture_units(f: Fixture, side: str, separate_lines_factor: float) -> float:

@@ -1,21 +1,25 @@
 """Surge rules: the peak pressure of every closure event against a limit, pipe and device ratings.
 
-A valve counts as protected when the arrestor the schedule asks for is shown with no problem. A
-protected valve's closed-form peak (computed without arrestors) is not held against it; where a
-simulation with the arrestors ran (``simulated_peak_with_arrestors_pa``) that peak is checked.
+Which figure a verdict uses (:func:`knockproof.results.governing_peak`, :func:`node_peaks`): the
+closed-form bound where no simulation ran; the simulated peak where the simulation covered the whole
+event; otherwise the larger of the two. Every node the event reaches is judged (the worst node for the
+peak limit, each pipe's two ends for its rating, each rated device's node), with that node's own
+static pressure inside its peak. A valve counts as protected when the arrestor the schedule asks for
+is shown with no problem: its peaks without arrestors are not held against it; where a simulation
+with the arrestors ran, those peaks are checked.
 """
 
 from __future__ import annotations
 
 from collections.abc import Iterator, Mapping
+from dataclasses import dataclass
 from typing import Any
 
 from knockproof.model.units import fmt
 from knockproof.physics.constants import PSI_PA
-from knockproof.results import EventResult
+from knockproof.results import EventResult, Figure, GoverningPeak, governing_peak, node_peaks
 from knockproof.rules.context import Context
 from knockproof.rules.engine import Finding, new_finding, rule
-from knockproof.rules.schedule import event_peak_pa
 from knockproof.rules.screening import protected_valves
 
 
@@ -23,17 +27,33 @@ def _valve_ids(e: EventResult) -> list[str]:
     return [f"{f}:{e.side}" for f in e.fixtures]
 
 
-def _events(ctx: Context) -> Iterator[tuple[EventResult, float, bool]]:
-    """(event, peak at the valve [Pa], protected) for the events to check."""
+@dataclass(frozen=True)
+class _Judged:
+    """One event as the surge rules judge it."""
+
+    event: EventResult
+    worst: GoverningPeak
+    nodes: dict[str, tuple[float, Figure]]
+    protected: bool
+
+
+def _events(ctx: Context) -> Iterator[_Judged]:
+    """Each event to check with its governing peak and its peaks node by node."""
     safe = protected_valves(ctx)
     for e in ctx.analysis.events:
         protected = all(v in safe for v in _valve_ids(e))
-        if protected:
-            if e.simulated_peak_with_arrestors_pa is None:
-                continue
-            yield e, e.simulated_peak_with_arrestors_pa, True
-        else:
-            yield e, event_peak_pa(e), False
+        worst = governing_peak(e, with_arrestors=protected)
+        if worst is None:
+            continue  # protected, and no simulation with the arrestors ran
+        yield _Judged(e, worst, node_peaks(e, with_arrestors=protected), protected)
+
+
+def _figure_text(figure: str) -> str:
+    return {
+        "simulated": "simulated",
+        "closed-form": "closed-form bound",
+        "simulated with arrestors": "simulated with arrestors",
+    }.get(figure, figure)
 
 
 def _event_where(ctx: Context, e: EventResult) -> dict[str, str]:
@@ -60,27 +80,37 @@ def _event_where(ctx: Context, e: EventResult) -> dict[str, str]:
     {"limit_pa": 150.0 * PSI_PA},
 )
 def peak_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
-    """Each closure event's peak at the valve (static + surge; the simulated peak where a simulation
-    ran) against limit_pa, for valves without a proper arrestor; for protected valves only a
-    simulated peak with the arrestors in place is checked."""
+    """Each closure event's highest peak anywhere it reaches (static + surge at the worst node: the
+    closed-form bound, the simulated peak where the simulation covered the whole event, else the
+    larger of the two) against limit_pa, for valves without a proper arrestor; for protected valves
+    only a simulated peak with the arrestors in place is checked. The finding names the node, and
+    which figure was used and why."""
     u = ctx.unit_system
     limit = float(params["limit_pa"])
-    for e, peak, protected in _events(ctx):
+    for j in _events(ctx):
+        e, worst = j.event, j.worst
+        peak = worst.pressure_pa
         if peak <= limit * (1 + 1e-9):
             continue
         w = _event_where(ctx, e)
-        state = "with its arrestor (simulated)" if protected else "with no proper arrestor shown"
+        state = "with its arrestor" if j.protected else "with no proper arrestor shown"
+        at = "at the valve" if worst.node == e.node else f"at node {worst.node}"
+        static = ctx.nodes[worst.node].static_pressure_pa if worst.node in ctx.nodes else None
+        static_text = (
+            f" (static {fmt(static, 'pressure', u, 0)} + surge)" if static is not None else ""
+        )
         yield new_finding(
             "surge.peak-limit",
             w,
-            f"closing {w['description']} ({e.side}) peaks at {fmt(peak, 'pressure', u, 0)} "
-            f"{state}; limit {fmt(limit, 'pressure', u, 0)} (static "
-            f"{fmt(e.static_pressure_pa, 'pressure', u, 0)} + surge).",
+            f"closing {w['description']} ({e.side}) peaks at {fmt(peak, 'pressure', u, 0)} {at} "
+            f"{state}{static_text}; limit {fmt(limit, 'pressure', u, 0)}. Figure: "
+            f"{worst.reason}.",
             measured=peak,
             limit=limit,
             unit="Pa",
             recommendation="protect the valve with the scheduled arrestor; a slower-closing valve, "
             "lower velocity or lower static pressure also lowers the peak",
+            figure=worst.reason,
         )
 
 
@@ -93,26 +123,19 @@ def peak_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     {"rating_factor": 1.0},
 )
 def pipe_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
-    """For every unprotected closure event, the peak reaching each pipe on its path back to the
-    supply (the larger of the peaks at its two ends; at the valve the simulated peak where one ran)
-    against the pipe's rating times rating_factor. One finding per pipe, for its worst event."""
+    """For every closure event, the peak reaching each pipe whose ends the event reaches (the larger
+    of the peaks at its two ends, each chosen as for the peak limit) against the pipe's rating times
+    rating_factor; with arrestors in place only the simulated peaks count. One finding per pipe, for
+    its worst event."""
     u = ctx.unit_system
     factor = float(params["rating_factor"])
-    worst: dict[str, tuple[float, EventResult]] = {}
-    for e, peak_valve, protected in _events(ctx):
-        pts = e.path
-        # With arrestors in place only the valve's simulated peak is known: check its pipe alone.
-        last = 1 if protected else len(pts) - 1
-        for k in range(min(last, len(pts) - 1)):
-            pipe = ctx.pipe_into.get(pts[k].node)
-            if pipe is None:
-                continue
-            lower = peak_valve if k == 0 else pts[k].peak_pressure_pa
-            peak = lower if protected else max(lower, pts[k + 1].peak_pressure_pa)
-            rating = ctx.pipes[pipe.id].pressure_rating_pa * factor
-            if peak > rating * (1 + 1e-9) and peak > worst.get(pipe.id, (0.0, e))[0]:
-                worst[pipe.id] = (peak, e)
-    for pid, (peak, e) in worst.items():
+    worst: dict[str, tuple[float, EventResult, Figure, bool]] = {}
+    for j in _events(ctx):
+        for pid, peak, figure in _pipe_peaks(ctx, j.nodes):
+            rating = ctx.pipes[pid].pressure_rating_pa * factor
+            if peak > rating * (1 + 1e-9) and peak > worst.get(pid, (0.0,))[0]:
+                worst[pid] = (peak, j.event, figure, j.protected)
+    for pid, (peak, e, figure, _protected) in sorted(worst.items()):
         r = ctx.pipes[pid]
         rating = r.pressure_rating_pa * factor
         label = r.label or ctx.node_label(r.downstream)
@@ -122,14 +145,30 @@ def pipe_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
             "surge.pipe-rating",
             {"pipe": pid, "node": r.downstream, "event": e.id, "side": r.side, "description": desc},
             f"pipe {pid} ({r.nominal_size} in {r.material}{said}) sees "
-            f"{fmt(peak, 'pressure', u, 0)} when {e.id} closes; rated "
+            f"{fmt(peak, 'pressure', u, 0)} when {e.id} closes ({_figure_text(figure)}); rated "
             f"{fmt(rating, 'pressure', u, 0)}.",
             measured=peak,
             limit=rating,
             unit="Pa",
             recommendation="protect the closing valve with its arrestor, or use pipe rated for "
             "the peak",
+            figure=_figure_text(figure),
         )
+
+
+def _pipe_peaks(
+    ctx: Context, nodes: Mapping[str, tuple[float, Figure]]
+) -> Iterator[tuple[str, float, Figure]]:
+    """(pipe id, peak, figure) for each pipe with an end among ``nodes``: the larger end's peak."""
+    seen: dict[str, tuple[float, Figure]] = {}
+    for n, (p, fig) in nodes.items():
+        ends = [ctx.pipe_into[n].id] if n in ctx.pipe_into else []
+        ends += [ctx.pipe_into[c].id for c in ctx.children.get(n, ())]
+        for pipe in ends:
+            if p > seen.get(pipe, (-1e300,))[0]:
+                seen[pipe] = (p, fig)
+    for pid, (p, fig) in seen.items():
+        yield pid, p, fig
 
 
 def _device_nodes(ctx: Context, node: str, kind: str) -> list[str]:
@@ -156,10 +195,9 @@ def _device_nodes(ctx: Context, node: str, kind: str) -> list[str]:
 def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """For every device with a rating: the highest pressure at its node (for a water heater also
     at the hot outlets it feeds) against the rating times rating_factor. The pressures looked at
-    are the static pressure there and the closed-form peak of every unprotected closure whose path
-    back to its supply passes the node (the simulated peak where the node is the valve's own); a
-    protected closure counts only with its simulated peak, at its valve. One finding per device,
-    for its worst case."""
+    are the static pressure there and the peak there of every closure event that reaches the node
+    (chosen as for the peak limit; with arrestors in place only the simulated peaks). One finding
+    per device, for its worst case."""
     u = ctx.unit_system
     factor = float(params["rating_factor"])
     rated = [
@@ -167,28 +205,28 @@ def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Findin
         for d in ctx.building.devices
         if d.rating_pa is not None
     ]
-    # node -> (pressure [Pa], the closure that brings it, None for static pressure)
-    at: dict[str, list[tuple[float, EventResult | None]]] = {
-        n: [(ctx.nodes[n].static_pressure_pa, None)]
+    # node -> (pressure [Pa], the closure that brings it (None: static), figure)
+    at: dict[str, list[tuple[float, EventResult | None, str]]] = {
+        n: [(ctx.nodes[n].static_pressure_pa, None, "")]
         for _, _, nodes in rated
         for n in nodes
         if n in ctx.nodes
     }
     if not at:
         return
-    for e, peak_valve, protected in _events(ctx):
-        for k, pt in enumerate(e.path):
-            if pt.node in at and (k == 0 or not protected):
-                at[pt.node].append((peak_valve if k == 0 else pt.peak_pressure_pa, e))
+    for j in _events(ctx):
+        for n in at.keys() & j.nodes.keys():
+            p, fig = j.nodes[n]
+            at[n].append((p, j.event, _figure_text(fig)))
     for d, rating_pa, nodes in rated:
         cases = [c for n in nodes for c in at.get(n, ())]
         if not cases:
             continue
-        peak, worst = max(cases, key=lambda c: c[0])
+        peak, worst, figure = max(cases, key=lambda c: c[0])
         rating = rating_pa * factor
         if peak <= rating * (1 + 1e-9):
             continue
-        what = "at rest (static pressure)" if worst is None else f"when {worst.id} closes"
+        what = "at rest (static pressure)" if worst is None else f"when {worst.id} closes ({figure})"
         yield new_finding(
             "surge.component-rating",
             {"device": d.id, "node": d.node, "description": f"{d.kind} {d.id}"}
@@ -204,4 +242,5 @@ def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Findin
             if worst is not None
             else "lower the static pressure (a pressure-reducing valve) or "
             "choose a device rated for it",
+            figure=figure,
         )

@@ -1,9 +1,10 @@
 """A :class:`~knockproof.rules.review.Review` as plain JSON-ready data.
 
 Key names are a fixed contract: ``verdict``, ``findings`` (each with ``rule``, ``severity``,
-``where``, ``message``, ``measured``, ``limit``, ``unit``, ``recommendation``), ``arrestors`` (each
-with ``node``, ``side``, ``size_class``, ``gas_volume_m3``, ``protects`` and the rest). A value with
-a unit has it in its key name (SI); ``measured`` and ``limit`` name theirs in ``unit``.
+``where``, ``message``, ``measured``, ``limit``, ``unit``, ``recommendation``, ``figure``),
+``arrestors`` (each with ``node``, ``side``, ``size_class``, ``gas_volume_m3``, ``protects`` and
+the rest). A value with a unit has it in its key name (SI); ``measured`` and ``limit`` name theirs
+in ``unit``.
 """
 
 from __future__ import annotations
@@ -26,6 +27,7 @@ def finding_to_json(f: Finding) -> dict[str, Any]:
         "limit": _num(f.limit),
         "unit": f.unit,
         "recommendation": f.recommendation,
+        "figure": f.figure,
     }
 
 
