@@ -7,7 +7,7 @@ from typing import Any
 
 from knockproof import __version__
 from knockproof.report.cautions import CAUTION
-from knockproof.results import Analysis, EventResult
+from knockproof.results import Analysis, EventResult, governing_peak
 from knockproof.results import json_number as _num
 
 
@@ -38,6 +38,7 @@ def event_to_json(e: EventResult) -> dict[str, Any]:
         "simulated_min_pressure_pa": _num(e.simulated_min_pressure_pa),
         "cavity": e.cavity,
         "simulated_peak_with_arrestors_pa": _num(e.simulated_peak_with_arrestors_pa),
+        **_worst_to_json(e),
         "path": [
             {
                 "node": p.node,
@@ -49,6 +50,44 @@ def event_to_json(e: EventResult) -> dict[str, Any]:
             }
             for p in e.path
         ],
+        "reach": [
+            {
+                "node": p.node,
+                "distance_m": _num(p.distance_m),
+                "surge_pa": _num(p.surge_pa),
+                "static_pressure_pa": _num(p.static_pressure_pa),
+                "peak_pressure_pa": _num(p.peak_pressure_pa),
+            }
+            for p in e.reach
+        ],
+        "simulated_node_peaks_pa": {n: _num(p) for n, p in e.simulated_node_peaks},
+        "simulated_node_peaks_with_arrestors_pa": {
+            n: _num(p) for n, p in e.simulated_node_peaks_with_arrestors
+        },
+    }
+
+
+def _worst_to_json(e: EventResult) -> dict[str, Any]:
+    """The worst node by each figure and the one a verdict uses (``worst_node``)."""
+    g = governing_peak(e)
+    return {
+        "worst_node": g.node if g else None,
+        "worst_node_pressure_pa": _num(g.pressure_pa) if g else None,
+        "worst_node_figure": g.figure if g else None,
+        "worst_node_reason": g.reason if g else None,
+        "quick_closing": e.quick_closing,
+        "bound_worst_node": e.bound_worst_node,
+        "bound_worst_node_pressure_pa": _num(e.bound_worst_node_pressure_pa),
+        "simulated_worst_node": e.simulated_worst_node,
+        "simulated_worst_node_pressure_pa": _num(e.simulated_worst_node_pressure_pa),
+        "simulated_worst_node_time_s": _num(e.simulated_worst_node_time_s),
+        "simulated_first_cycle_worst_pressure_pa": _num(e.simulated_first_cycle_worst_pressure_pa),
+        "simulation_covers_event": e.simulation_covers_event,
+        "wave_speed_adjustment_max": _num(e.wave_speed_adjustment_max),
+        "simulated_closure_time_s": _num(e.simulated_closure_time_s),
+        "simulated_worst_node_with_arrestors": e.simulated_worst_node_with_arrestors,
+        "simulated_worst_node_with_arrestors_pa": _num(e.simulated_worst_node_with_arrestors_pa),
+        "arrestor_raises_peak": e.arrestor_raises_peak,
     }
 
 

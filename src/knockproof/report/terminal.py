@@ -7,13 +7,27 @@ from rich.markup import escape
 from rich.table import Table
 
 from knockproof.model.units import fmt, to_display, unit_label
-from knockproof.results import Analysis
+from knockproof.results import Analysis, EventResult, governing_peak
+
+
+def _judged_pa(e: EventResult) -> float:
+    g = governing_peak(e)
+    return e.peak_pressure_pa if g is None else g.pressure_pa
+
+
+def _judged_text(e: EventResult, u: str) -> str:
+    g = governing_peak(e)
+    if g is None:
+        return "–"
+    mark = "S" if g.figure.startswith("simulated") else "C"
+    where = "" if g.node == e.node else f" @{g.node}"
+    return f"{to_display(g.pressure_pa, 'pressure', u):.0f} {mark}{where}"
 
 
 def render_events(console: Console, a: Analysis, limit: int = 12) -> None:
     """The worst closure events by peak pressure."""
     u = a.unit_system
-    events = sorted(a.events, key=lambda e: (-e.peak_pressure_pa, e.id))
+    events = sorted(a.events, key=lambda e: (-_judged_pa(e), e.id))
     shown = events if limit <= 0 else events[:limit]
     p_unit = unit_label("pressure", u)
     t = Table(
@@ -33,6 +47,7 @@ def render_events(console: Console, a: Analysis, limit: int = 12) -> None:
     if simulated:
         t.add_column(f"sim {p_unit}", justify="right")
         t.add_column(f"w/ arr. {p_unit}", justify="right")
+    t.add_column(f"judged {p_unit}", justify="right", overflow="fold")
     for e in shown:
         peak = to_display(e.peak_pressure_pa, "pressure", u)
         peak_text = f"{peak:.0f}"
@@ -52,11 +67,15 @@ def render_events(console: Console, a: Analysis, limit: int = 12) -> None:
                 if simulated
                 else []
             ),
+            escape(_judged_text(e, u)),
         )
     console.print(t)
     console.print(
         "R = rapid closure (closure time at or under 2L/a): full Joukowsky surge; peak = "
-        "closed-form estimate (static + surge)."
+        "closed-form estimate at the valve (static + surge); judged = the figure the rules use, "
+        "the highest peak anywhere the closure reaches (@node where not at the valve): "
+        "C = closed-form bound, S = simulated (where the simulation covered the whole event, or "
+        "where it is the larger figure)."
     )
     if simulated:
         console.print(
@@ -109,13 +128,17 @@ def render_assumptions(console: Console, a: Analysis) -> None:
 
 def render_headline(console: Console, a: Analysis) -> None:
     u = a.unit_system
-    worst = max(a.events, key=lambda e: e.peak_pressure_pa, default=None)
+    worst = max(a.events, key=lambda e: (_judged_pa(e), e.id), default=None)
     console.print(f"[bold]{escape(a.building_name)}[/]  ({escape(a.source)})")
     line = f"{len(a.pipes)} pipes, {len(a.events)} closure events"
     if worst is not None:
+        g = governing_peak(worst)
+        assert g is not None
+        figure = "closed-form bound" if g.figure == "closed-form" else "simulated"
+        at = "" if g.node == worst.node else f" (at node {escape(g.node)})"
         line += (
-            f"; highest estimated peak {fmt(worst.peak_pressure_pa, 'pressure', u, 0)} at "
-            f"{escape(worst.fixture)}:{worst.side}"
+            f"; highest peak {fmt(g.pressure_pa, 'pressure', u, 0)} ({figure}) when "
+            f"{escape(worst.fixture)}:{worst.side} closes{at}"
         )
     console.print(line)
 
