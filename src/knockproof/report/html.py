@@ -26,7 +26,7 @@ import networkx as nx
 from knockproof import __version__
 from knockproof.model.units import fmt, unit_label
 from knockproof.report.cautions import CAUTION
-from knockproof.results import Analysis, EventResult
+from knockproof.results import Analysis, EventResult, governing_peak
 
 #: Worst events listed in the events table, and plotted (one per kind of valve and side).
 EVENTS_LISTED = 12
@@ -123,9 +123,13 @@ def key_figures(tree: nx.DiGraph, analysis: Analysis) -> list[tuple[str, str]]:
         out.append(("Fixtures", f"{len(building.fixtures):,}"))
     out.append(("Closure events", f"{len(analysis.events):,}"))
     if analysis.events:
-        worst = max(analysis.events, key=lambda e: e.peak_pressure_pa)
-        out.append(("Highest peak (estimate)", f"{fmt(worst.peak_pressure_pa, 'pressure', u)} at "
-                    f"{worst.label or worst.fixture} ({worst.side})"))
+        worst = max(analysis.events, key=lambda e: (judged_pa(e), e.id))
+        g = governing_peak(worst)
+        assert g is not None
+        figure = "closed-form bound" if g.figure == "closed-form" else "simulated"
+        at = "" if g.node == worst.node else f", at node {g.node}"
+        out.append((f"Highest peak ({figure})", f"{fmt(g.pressure_pa, 'pressure', u)} when "
+                    f"{worst.label or worst.fixture} ({worst.side}) closes{at}"))
     if analysis.nodes:
         hi = max(analysis.nodes, key=lambda n: n.static_pressure_pa)
         out.append(("Highest static pressure",
@@ -276,8 +280,23 @@ def _event_limit(event: EventResult, review: Any) -> float | None:
     return None
 
 
+def judged_pa(e: EventResult) -> float:
+    """The peak the rules judge for an event (:func:`knockproof.results.governing_peak`)."""
+    g = governing_peak(e)
+    return e.peak_pressure_pa if g is None else g.pressure_pa
+
+
+def _judged_text(e: EventResult, u: str) -> str:
+    g = governing_peak(e)
+    if g is None:
+        return ""
+    figure = "bound" if g.figure == "closed-form" else "simulated"
+    at = "" if g.node == e.node else f" at {g.node}"
+    return f"{fmt(g.pressure_pa, 'pressure', u)} ({figure}{at})"
+
+
 def worst_events(analysis: Analysis) -> list[EventResult]:
-    return sorted(analysis.events, key=lambda e: (-e.peak_pressure_pa, e.id))
+    return sorted(analysis.events, key=lambda e: (-judged_pa(e), e.id))
 
 
 def events_context(analysis: Analysis) -> dict[str, Any]:
@@ -288,7 +307,7 @@ def events_context(analysis: Analysis) -> dict[str, Any]:
     for e in worst_events(analysis):
         key = (e.kind, e.side, e.closure, fmt(e.peak_pressure_pa, "pressure", u),
                fmt(e.surge_pa, "pressure", u), fmt(e.static_pressure_pa, "pressure", u),
-               fmt(e.simulated_peak_pressure_pa, "pressure", u))
+               fmt(e.simulated_peak_pressure_pa, "pressure", u), _judged_text(e, u))
         if key not in groups and len(groups) == EVENTS_LISTED:
             continue
         groups.setdefault(key, []).append(e)
@@ -306,6 +325,7 @@ def events_context(analysis: Analysis) -> dict[str, Any]:
             "static": fmt(e.static_pressure_pa, "pressure", u),
             "peak": fmt(e.peak_pressure_pa, "pressure", u),
             "simulated": fmt(e.simulated_peak_pressure_pa, "pressure", u),
+            "judged": _judged_text(e, u),
         })
     return {"rows": rows, "simulated": simulated, "total": len(analysis.events),
             "grouped": any(r["count"] > 1 for r in rows)}
