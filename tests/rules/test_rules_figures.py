@@ -155,3 +155,25 @@ def test_protected_valve_judged_on_its_simulated_peaks_with_arrestors(check):
     (f,) = r.by_rule("surge.peak-limit")
     assert f.measured == pytest.approx(160 * PSI)
     assert f.figure == "simulated with the arrestors in place"
+
+
+def test_arrestor_that_raises_the_simulated_peak_is_reported(check):
+    c, e = _washer(check, static="70 psi", extra=arrestor("W", "AA"))
+    bare = 100 * PSI
+    _, r = _with(c, e, simulated_peak_pressure_pa=bare, simulated_worst_node_pressure_pa=bare,
+                 simulated_peak_with_arrestors_pa=bare + 5 * PSI,
+                 simulated_worst_node_with_arrestors="W",
+                 simulated_worst_node_with_arrestors_pa=bare + 5 * PSI)
+    (f,) = r.by_rule("surge.arrestor-raises-peak")
+    assert f.measured == pytest.approx(bare + 5 * PSI)
+    assert f.limit == pytest.approx(bare)
+    assert "rings with the water column" in f.message
+
+
+def test_arrestor_that_lowers_the_peak_is_not_reported(check):
+    c, e = _washer(check, static="70 psi", extra=arrestor("W", "AA"))
+    _, r = _with(c, e, simulated_peak_pressure_pa=200 * PSI,
+                 simulated_worst_node_pressure_pa=200 * PSI,
+                 simulated_peak_with_arrestors_pa=120 * PSI,
+                 simulated_worst_node_with_arrestors_pa=120 * PSI)
+    assert r.by_rule("surge.arrestor-raises-peak") == []

@@ -244,3 +244,44 @@ def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Findin
             "choose a device rated for it",
             figure=figure,
         )
+
+
+@rule(
+    "surge.arrestor-raises-peak",
+    "Scheduled arrestors that raise a closure's simulated peak",
+    "warning",
+    "Physics of a gas cushion on a water column: the gas is a spring and the column a mass, so a "
+    "cushion that is soft against a slow or low-velocity closure rings with the column and can "
+    "overshoot the bare line's peak (Wylie & Streeter, Fluid Transients in Systems, 1993, on air "
+    "chambers; from memory). Our rule: the simulation with and without the arrestors compared.",
+    {"min_rise_pa": 0.5 * PSI_PA},
+)
+def arrestor_raises_peak(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
+    """For every event simulated both bare and with its scheduled arrestors, where the highest
+    simulated pressure anywhere with the arrestors exceeds the bare one by more than min_rise_pa:
+    say so and why, whatever the limit (the schedule's gas volume is then no protection for this
+    closure)."""
+    u = ctx.unit_system
+    rise_min = float(params["min_rise_pa"])
+    for e in ctx.analysis.events:
+        bare = e.simulated_worst_node_pressure_pa or e.simulated_peak_pressure_pa
+        with_a = e.simulated_worst_node_with_arrestors_pa or e.simulated_peak_with_arrestors_pa
+        if bare is None or with_a is None or with_a - bare <= rise_min:
+            continue
+        w = _event_where(ctx, e)
+        node = e.simulated_worst_node_with_arrestors or e.node
+        yield new_finding(
+            "surge.arrestor-raises-peak",
+            w,
+            f"with the scheduled arrestors, closing {w['description']} ({e.side}) peaks at "
+            f"{fmt(with_a, 'pressure', u, 0)} (node {node}), above "
+            f"{fmt(bare, 'pressure', u, 0)} without them: the arrestor's gas spring rings with "
+            f"the water column ({e.closure} closure, {fmt(e.closure_time_s, 'time', u, 0)} against "
+            f"2L/a {fmt(e.critical_time_s, 'time', u, 1)}).",
+            measured=with_a,
+            limit=bare,
+            unit="Pa",
+            recommendation="check the arrestor's size and place against the maker's data for this "
+            "closure; a larger gas volume or an arrestor nearer the valve damps the ringing",
+            figure="simulated with and without the arrestors",
+        )
