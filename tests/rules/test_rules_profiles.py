@@ -17,7 +17,8 @@ RULE_IDS = {
     "arrestor.required", "arrestor.placement", "arrestor.branch-length", "arrestor.size-class",
     "arrestor.gas-volume", "arrestor.both-sides", "arrestor.redundant", "velocity.cold-limit",
     "velocity.hot-limit", "pressure.static-limit", "pressure.minimum-flowing", "surge.peak-limit",
-    "surge.pipe-rating", "surge.component-rating", "system.closed-no-expansion-tank",
+    "surge.pipe-rating", "surge.component-rating", "surge.arrestor-raises-peak",
+    "system.closed-no-expansion-tank",
 }
 
 UNIT_SUFFIX = re.compile(r"(_m|_m_per_s|_pa|_m3|_c|_s)(_by_\w+)?$")
