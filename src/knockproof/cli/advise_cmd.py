@@ -35,42 +35,37 @@ def command(
         raise UsageError(f"--format: expected text or json, found '{format}'")
     if events < 0:
         raise UsageError("--events: expected 0 or more")
-    from knockproof.advice import advice_document, advise, events_over
-    from knockproof.analysis.run import analyze_tree
-    from knockproof.model.loader import load_building
+    import knockproof
     from knockproof.model.units import QuantityError, parse_quantity
-    from knockproof.network import build_tree
 
-    building = load_building(file)
+    building = knockproof.load(file)
     try:
         limit_pa = parse_quantity(_number_or_text(limit), "pressure", building.unit_system)
     except QuantityError as e:
         raise UsageError(f"--limit: {e}") from None
     if not limit_pa > 0:
         raise UsageError(f"--limit: must be more than zero, found '{limit}'")
-    tree = build_tree(building)
-    analysis = analyze_tree(tree)
     text = format == "text"
     most = events if (text and not event) else None
-    advice = advise(
-        tree,
-        analysis,
-        event_ids=event or None,
+    request = knockproof.AdviceRequest(
+        events=tuple(event) if event else None,
         limit_pa=limit_pa,
         include_passing=all_events,
         most=most,
     )
+    result = knockproof.check(building, simulate=False, advise=request)
+    advice = result.advice or ()
     failing = any(a.peak_pressure_pa > limit_pa for a in advice)
     if not text:
         from knockproof.cli.output import write_text
         from knockproof.report.json_out import dumps
 
-        write_text(dumps(advice_document(advice, building.name, building.source, limit_pa)))
+        write_text(dumps(result.advice_document()))
         return 1 if failing else 0
     from knockproof.cli.output import out
     from knockproof.report.advice_text import render_advice
 
-    total = len(analysis.events) if all_events else events_over(analysis, limit_pa)
+    total = len(result.analysis.events) if all_events else result.events_over(limit_pa)
     not_shown = 0 if event else max(0, total - len(advice))
     render_advice(out(), advice, building.name, limit_pa, building.unit_system, not_shown)
     return 1 if failing else 0

@@ -43,60 +43,39 @@ def command(
         raise UsageError("give a building file or --example (one of them)")
     if events < 0:
         raise UsageError("--events: expected 0 or more")
-    from knockproof.analysis.run import analyze_tree
-    from knockproof.analysis.summary import summarize
+    import knockproof
     from knockproof.cli.output import out, write_text
-    from knockproof.model.loader import load_building
-    from knockproof.network import build_tree
+    from knockproof.cli.progress import progress_bar
     from knockproof.report.cautions import CAUTION
 
     path = example_path() if example else file
     assert path is not None
-    building = load_building(path)
-    tree = build_tree(building)
     console = out()
     if summary_only:
         from knockproof.report.summary_text import render_summary
 
-        render_summary(console, summarize(tree), building.unit_system)
+        building, summary = knockproof.pipeline.summary(path)
+        render_summary(console, summary, building.unit_system)
         console.print(CAUTION)
         return 0
-    from knockproof.rules import review as run_review
-    from knockproof.rules.review import resolve_profile
-
-    prof = resolve_profile(profile, building.source, building.profile)
-    analysis = analyze_tree(tree, simultaneous=simultaneous)
-    review = run_review(tree, analysis, prof)
-    checks: list[object] = []
-    if not no_simulation and analysis.events:
-        from knockproof.cli.progress import simulate_with_progress
-
-        analysis, checks = simulate_with_progress(tree, analysis, review, prof, workers)
-        review = run_review(tree, analysis, prof)
-    advice = None
-    if advise_options:
-        from knockproof.advice import advise
-
-        limit = float(prof.params("surge.peak-limit")["limit_pa"])
-        advice = advise(tree, analysis, limit_pa=limit)
+    with progress_bar() as progress:
+        result = knockproof.check(
+            path,
+            profile=profile,
+            simulate=not no_simulation,
+            advise=advise_options,
+            workers=workers,
+            progress=progress,
+            simultaneous=simultaneous,
+        )
+    analysis, review, checks, advice = (
+        result.analysis, result.review, list(result.arrestor_checks), result.advice
+    )
     if format == "json":
-        from knockproof.report.json_out import analysis_to_json, arrestor_checks_to_json, dumps
-        from knockproof.rules import review_to_json
+        from knockproof.report.json_out import dumps
 
-        data = analysis_to_json(analysis)
-        data.update(review_to_json(review))
-        data["simulation"] = {
-            "run": not no_simulation,
-            "arrestor_checks": arrestor_checks_to_json(checks),
-        }
-        if advice is not None:
-            from knockproof.advice import advice_to_json
-
-            by_event = {a["event"]: a["options"] for a in advice_to_json(advice)}
-            for e in data["events"]:
-                e["options"] = by_event.get(e["id"], [])
-        write_text(dumps(data))
-        return review.exit_status
+        write_text(dumps(result.to_dict()))
+        return result.exit_status
     if format == "markdown":
         from knockproof.report.markdown import analysis_markdown
         from knockproof.report.review_markdown import review_markdown
@@ -104,7 +83,7 @@ def command(
         write_text(
             review_markdown(review, findings) + "\n" + analysis_markdown(analysis, header=False)
         )
-        return review.exit_status
+        return result.exit_status
     from knockproof.report import terminal
     from knockproof.report.review_text import render_review
 
@@ -120,14 +99,14 @@ def command(
             console,
             shown,
             analysis.building_name,
-            float(prof.params("surge.peak-limit")["limit_pa"]),
+            result.peak_limit_pa,
             analysis.unit_system,
             len(advice) - len(shown),
         )
     terminal.render_pipes(console, analysis)
     terminal.render_assumptions(console, analysis)
     console.print(CAUTION)
-    return review.exit_status
+    return result.exit_status
 
 
 def example_path() -> Path:

@@ -1,32 +1,28 @@
-"""Running the simulation from the CLI with a progress bar on stderr (only on a terminal)."""
+"""A progress bar on stderr for the simulation (only on a terminal)."""
 
 from __future__ import annotations
 
 import sys
-from typing import Any
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 
 
-def simulate_with_progress(
-    tree: Any, analysis: Any, review: Any, profile: Any, workers: int | None
-) -> tuple[Any, list[Any]]:
-    """Simulate every event (bare and with the scheduled arrestors) and check arrestor volumes."""
-    from knockproof.transient.run import simulate_all, verify_arrestors
+@contextmanager
+def progress_bar(label: str = "simulating closure events") -> Iterator[
+    Callable[[int, int], None] | None
+]:
+    """Yield a ``progress(done, total)`` callback drawing a bar on stderr; None off a terminal."""
+    if not sys.stderr.isatty():
+        yield None
+        return
+    from rich.progress import Progress
 
-    limit = float(profile.params("surge.peak-limit")["limit_pa"])
-    arrestors = review.arrestors
-    total = len(analysis.events) + sum(1 for _ in arrestors)
-    if sys.stderr.isatty():
-        from rich.progress import Progress
+    from knockproof.cli.output import err
 
-        from knockproof.cli.output import err
+    with Progress(console=err(), transient=True) as bar:
+        task = bar.add_task(label, total=None)
 
-        with Progress(console=err(), transient=True) as bar:
-            task = bar.add_task("simulating closure events", total=total)
-            analysis, _, _ = simulate_all(
-                tree, analysis, arrestors, workers, lambda n: bar.advance(task, n)
-            )
-            checks = verify_arrestors(tree, analysis, arrestors, limit, workers)
-    else:
-        analysis, _, _ = simulate_all(tree, analysis, arrestors, workers)
-        checks = verify_arrestors(tree, analysis, arrestors, limit, workers)
-    return analysis, checks
+        def advance(done: int, total: int) -> None:
+            bar.update(task, total=total, advance=done)
+
+        yield advance

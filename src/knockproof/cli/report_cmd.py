@@ -51,31 +51,19 @@ def command(
                 "--schedule: the schedule would overwrite the HTML report; give it another name"
             )
 
-    from knockproof.analysis.run import analyze_tree
+    import knockproof
     from knockproof.cli.output import out
-    from knockproof.model.loader import load_building
-    from knockproof.network import build_tree
+    from knockproof.cli.progress import progress_bar
     from knockproof.report.cautions import CAUTION
     from knockproof.report.files import write_atomic
-    from knockproof.report.html import render_html
+    from knockproof.report.html import plotted_events, render_html
 
-    building = load_building(path)
-    tree = build_tree(building)
-    from knockproof.rules import review as run_review
-    from knockproof.rules.review import resolve_profile
-
-    prof = resolve_profile(profile, building.source, building.profile)
-    analysis = analyze_tree(tree)
-    review = run_review(tree, analysis, prof)
-    simulations = None
-    if not no_simulation and analysis.events:
-        from knockproof.cli.progress import simulate_with_progress
-        from knockproof.report.html import plotted_events
-        from knockproof.transient.run import traces_for
-
-        analysis, _checks = simulate_with_progress(tree, analysis, review, prof, workers)
-        review = run_review(tree, analysis, prof)
-        simulations = traces_for(tree, analysis, plotted_events(analysis), review.arrestors)
+    with progress_bar() as progress:
+        result = knockproof.check(
+            path, profile=profile, simulate=not no_simulation, workers=workers, progress=progress
+        )
+    tree, analysis, review = result.tree, result.analysis, result.review
+    simulations = result.traces(plotted_events(analysis)) if result.simulated else None
     html = render_html(tree, analysis, review, simulations)
     write_atomic(output, html)
     console = out()
@@ -97,12 +85,9 @@ def command(
         else:
             write_schedule_csv(schedule, rows, analysis.unit_system)
         console.print(f"Wrote {schedule} ({len(rows)} arrestors).", markup=False, highlight=False)
-    verdict = (
-        str(getattr(review, "verdict", "not evaluated")) if review is not None else "not evaluated"
-    )
-    console.print(f"Verdict: {verdict}.", markup=False, highlight=False)
+    console.print(f"Verdict: {result.verdict}.", markup=False, highlight=False)
     console.print(CAUTION, markup=False, highlight=False)
-    return 1 if verdict == "fail" else 0
+    return result.exit_status
 
 
 def _same(a: Path, b: Path) -> bool:

@@ -95,6 +95,21 @@ def read_document(path: str | Path) -> tuple[BuildingFile, LineIndex]:
         raise InputError.single(
             file, "file", "", f"is not UTF-8 text (byte 0x{raw[e.start]:02x})", line
         ) from None
+    return parse_document(text, file)
+
+
+def parse_document(text: str, file: str = "<text>") -> tuple[BuildingFile, LineIndex]:
+    """Parse and structurally validate a building file's text; ``file`` names it in messages."""
+    if len(text.encode("utf-8")) > MAX_FILE_BYTES:
+        raise InputError.single(
+            file, "file", "", f"is larger than {MAX_FILE_BYTES:,} bytes, the limit for building "
+            "files (use templates for repeated floors)"
+        )
+    if not text.strip():
+        raise InputError.single(
+            file, "file", "", "is empty; `knockproof new` writes a starter file"
+        )
+    line: int | None
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as e:
@@ -110,7 +125,14 @@ def read_document(path: str | Path) -> tuple[BuildingFile, LineIndex]:
         raise InputError.single(
             file, "file", "", f"is not valid TOML: a value cannot be read ({str(e)[:80]})"
         ) from None
-    lines = LineIndex(text)
+    return validate_document(data, file, LineIndex(text))
+
+
+def validate_document(
+    data: dict[str, Any], file: str = "<dict>", lines: LineIndex | None = None
+) -> tuple[BuildingFile, LineIndex]:
+    """Structurally validate a building file already read into a dict (TOML's data model)."""
+    lines = lines if lines is not None else LineIndex("")
     try:
         doc = BuildingFile.model_validate(data)
     except ValidationError as e:
@@ -301,8 +323,26 @@ def load_building(path: str | Path) -> Building:
     Raises :class:`InputError` listing every problem found. The tree itself (loops, disconnected
     parts, unknown nodes) is checked by :func:`knockproof.network.build_tree`.
     """
-    file = str(path)
     doc, lines = read_document(path)
+    return building_from_document(doc, lines, str(path))
+
+
+def load_building_text(text: str, name: str = "<text>") -> Building:
+    """:func:`load_building` for a building file's text (``name`` stands for the file)."""
+    doc, lines = parse_document(text, name)
+    return building_from_document(doc, lines, name)
+
+
+def load_building_data(data: dict[str, Any], name: str = "<dict>") -> Building:
+    """:func:`load_building` for a building file already read into a dict."""
+    if not isinstance(data, dict):
+        raise InputError.single(name, "file", "", "expected a table (a dict) of building data")
+    doc, lines = validate_document(data, name)
+    return building_from_document(doc, lines, name)
+
+
+def building_from_document(doc: BuildingFile, lines: LineIndex, file: str) -> Building:
+    """Expand templates, convert units and check a validated document (see :func:`load_building`)."""
     try:
         items = expand(doc)
     except TemplateProblem as e:
