@@ -102,6 +102,13 @@ class FixtureKind:
     arrestor_units_public: float
     source: str
 
+    @property
+    def flow_m3_per_s(self) -> float:
+        """The code's required capacity, IPC Table 604.3 (the same as ``minimum_flow_m3_per_s``):
+        the least flow the fixture must still get. Not the flow a valve stops (see
+        :meth:`flow_at`)."""
+        return self.minimum_flow_m3_per_s
+
     def flow_at(self, pressure_pa: float, use: str = "private") -> float:
         """Flow through one side's valve with ``pressure_pa`` (gauge) at it [m³/s].
 

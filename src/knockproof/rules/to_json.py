@@ -1,7 +1,8 @@
 """A :class:`~knockproof.rules.review.Review` as plain JSON-ready data.
 
 Key names are a fixed contract: ``verdict``, ``findings`` (each with ``rule``, ``severity``,
-``where``, ``message``, ``measured``, ``limit``, ``unit``, ``recommendation``), ``arrestors`` (each
+``where``, ``message``, ``measured``, ``limit``, ``unit``, ``recommendation``, ``basis``: the code,
+section and edition the finding rests on), ``arrestors`` (each
 with ``node``, ``side``, ``size_class``, ``gas_volume_m3``, ``protects`` and the rest). A value with
 a unit has it in its key name (SI); ``measured`` and ``limit`` name theirs in ``unit``.
 """
@@ -26,6 +27,7 @@ def finding_to_json(f: Finding) -> dict[str, Any]:
         "limit": _num(f.limit),
         "unit": f.unit,
         "recommendation": f.recommendation,
+        "basis": f.basis,
     }
 
 
