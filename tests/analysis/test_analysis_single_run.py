@@ -21,7 +21,7 @@ FT = 0.3048  # m exactly
 
 def korteweg(K, rho, E, nu, D, e):
     """Wylie & Streeter 1993 §2 (from memory), anchored throughout: thin-wall c = 1 - nu^2, and
-    since these pipes have D/e < 25 the thick-wall form c1 = (2e/D)(1+nu) + D c/(D+e) (CHECKS.md)."""
+    since these pipes have D/e < 25 the thick-wall form c1 = (2e/D)(1+nu) + D c/(D+e)."""
     assert D / e < 25
     c = 1 - nu**2
     c1 = 2 * e / D * (1 + nu) + D * c / (D + e)
@@ -34,7 +34,7 @@ def water(t_c):
 
 
 def test_single_run_matches_joukowsky_by_hand():
-    # 3/4 copper L: OD 0.875 in, wall 0.045 in (ASTM B88, CHECKS.md); E 117 GPa, nu 0.34 (from memory)
+    # 3/4 copper L: OD 0.875 in, wall 0.045 in (ASTM B88); E 117 GPa, nu 0.34 (from memory)
     D = (0.875 - 2 * 0.045) * 0.0254
     e = 0.045 * 0.0254
     rho, K = water(15.0)
@@ -67,7 +67,7 @@ def test_rule_of_thumb_60_psi_per_ft_per_s_in_copper():
 
 
 def test_pex_surge_far_below_copper():
-    # PEX SDR 9 at 20 C: maker's table 250 m/s (CHECKS.md) vs copper ~1280 m/s: surge ratio ~ a ratio.
+    # PEX SDR 9 at 20 C: maker's table 250 m/s vs copper ~1280 m/s: surge ratio ~ a ratio.
     r_pex = estimate_run("pex-sdr9", "3/4", 15.0, 4 * GPM, 0.005, 60 * PSI, 20.0)
     assert r_pex.wave_speed_m_per_s == pytest.approx(250, rel=0.05)
 

@@ -1,6 +1,6 @@
 """Fixture kinds against IPC Table 604.3 (flows), Table E103.3(2) (WSFU) and the arrestor weights.
 
-C = confirmed page, M = from memory, as in CHECKS.md.
+C = confirmed in the published page named, M = from memory.
 """
 
 from __future__ import annotations
@@ -124,7 +124,7 @@ E103_PUBLIC_C = {
     "service-sink": (2.25, 2.25, 3),
     "drinking-fountain": (0.25, 0, 0.25),
 }
-# IPC Table E103.3(2) rows not in CHECKS.md: from memory (M).
+# IPC Table E103.3(2) rows not confirmed: from memory (M).
 E103_PRIVATE_M = {
     "clothes-washer": (1, 1, 1.4),
     "shower": (1, 1, 1.4),
@@ -156,7 +156,7 @@ def test_sensor_faucet_takes_lavatory_wsfu() -> None:
     assert (sensor.wsfu_private, sensor.wsfu_public) == (lav.wsfu_private, lav.wsfu_public)
 
 
-# Arrestor sizing weights, (public, private), from memory (CHECKS.md, M).
+# Arrestor sizing weights, (public, private), from memory (M).
 ARRESTOR_UNITS_M = {
     "water-closet-flush-valve": (10, 6),
     "water-closet-tank": (5, 3),
@@ -193,7 +193,7 @@ def test_every_kind_is_consistent_and_sourced() -> None:
 
 
 def test_valve_kinds_and_closure_basis() -> None:
-    # CHECKS.md closing times, from memory: solenoids 10-50 ms; single lever 0.1-0.3 s;
+    # Closing times, from memory: solenoids 10-50 ms; single lever 0.1-0.3 s;
     # flushometer controlled closure 1-5 s.
     for key in ("clothes-washer", "dishwasher", "ice-maker", "sensor-faucet"):
         kind = get_fixture_kind(key)
