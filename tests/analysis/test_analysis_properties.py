@@ -64,7 +64,7 @@ def test_peak_at_least_static_and_finite(
     t_hi=st.floats(40.0, 80.0),
 )
 def test_softer_plastic_never_raises_surge(length, flow, closure, t_lo, t_hi):
-    # PEX softens when hot (CHECKS.md: 465 / 350 / 228 MPa at 20 / 30 / 40 C): at the same velocity
+    # PEX softens when hot (maker's table, C: 465 / 350 / 228 MPa at 20 / 30 / 40 C): at the same velocity
     # the hotter, more flexible pipe gives the lower wave speed and so no higher surge.
     cool = estimate_run("pex-sdr9", "3/4", length, flow, closure, 400e3, t_lo)
     hot = estimate_run("pex-sdr9", "3/4", length, flow, closure, 400e3, t_hi)

@@ -1,5 +1,5 @@
 """Arrestor size classes: symbols (C, pmmag.com/articles/105789-...) and fixture-unit ranges
-(from memory, CHECKS.md: A 1-11, B 12-32, C 33-60, D 61-113, E 114-154, F 155-330)."""
+(PDI-WH 201, from memory: A 1-11, B 12-32, C 33-60, D 61-113, E 114-154, F 155-330)."""
 
 from __future__ import annotations
 

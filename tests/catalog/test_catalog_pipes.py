@@ -1,6 +1,6 @@
 """Pipe materials and sizes against published tables and the fluids reference library.
 
-Sources are the design notes' CHECKS.md entries (marked C = confirmed page, M = from memory).
+Sources are named beside each value (C = confirmed in the published page named, M = from memory).
 Unit factors are the exact definitions, written here, not taken from knockproof.
 """
 
@@ -37,7 +37,7 @@ def nps(nominal: str) -> float:
 
 # --- ASTM B88 copper tube --------------------------------------------------------------------
 # OD = nominal + 1/8 in; walls K/L/M in inches. C: K and L engineeringtoolbox.com/astm-copper-tubes-
-# d_779.html; M up to 2 in sizes.com/materls/pipeCopper.htm; M above 2 in from memory (CHECKS.md).
+# d_779.html; M up to 2 in sizes.com/materls/pipeCopper.htm; M above 2 in from memory.
 # 1/4 in: OD .375, walls .035/.030/.025 from memory (the brief).
 B88_WALLS_IN = {
     "1/4": (0.035, 0.030, 0.025),
@@ -98,7 +98,7 @@ def test_pex_sdr9_published_rows(nominal: str) -> None:
 
 @pytest.mark.parametrize("nominal", ["1-1/4", "1-1/2", "2"])
 def test_pex_sdr9_larger_rows_follow_sdr9(nominal: str) -> None:
-    # M (CHECKS.md): OD = nominal + 1/8 in, wall = OD/9.
+    # M (from memory): OD = nominal + 1/8 in, wall = OD/9.
     size = get_size("pex-sdr9", nominal)
     od = (nps(nominal) + 0.125) * INCH
     assert size.outside_diameter_m == pytest.approx(od, abs=1e-9)
@@ -113,7 +113,7 @@ def test_pex_ratings() -> None:
 
 
 # --- CPVC SDR 11, ASTM D2846 ------------------------------------------------------------------
-# OD / wall (in), C: a CPVC maker's technical information sheet (CHECKS.md).
+# OD / wall (in), C: a CPVC maker's technical information sheet.
 CPVC_IN = {
     "1/2": (0.625, 0.068),
     "3/4": (0.875, 0.080),
@@ -226,7 +226,7 @@ def test_contract_material_keys_exist() -> None:
         assert get_material(key).key == key
 
 
-# --- Elastic constants (CHECKS.md) -------------------------------------------------------------
+# --- Elastic constants (docs/sources.md) -------------------------------------------------------------
 @pytest.mark.parametrize(
     "key,modulus,poisson",
     [

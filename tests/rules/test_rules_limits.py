@@ -1,6 +1,6 @@
 """Velocity, pressure, surge and system rules: each fires once and stays quiet once.
 
-Limits are checked against the published values in CHECKS.md (source beside each); the measured
+Limits are checked against published values (source beside each); the measured
 values are the analysis's (another stage), never the rule's own arithmetic.
 """
 
@@ -49,7 +49,7 @@ def test_cold_velocity_fires_over_8_ft_per_s(check):
     c = check(one_pipe(flow="10 gpm"))
     (f,) = c.rule("velocity.cold-limit")
     assert f.where["pipe"] == "P1"
-    assert f.limit == pytest.approx(8 * FT)  # NSPC 10.14.1, 8 ft/s (CHECKS.md, C)
+    assert f.limit == pytest.approx(8 * FT)  # NSPC 10.14.1, 8 ft/s (C)
     assert f.measured == pytest.approx(c.analysis.pipe("P1").velocity_m_per_s)
     assert f.measured > 8 * FT
     assert f.severity == "warning"
@@ -73,7 +73,7 @@ def test_hot_velocity_fires_over_5_ft_per_s_in_copper(check):
     c = check(_hot_flat("4.5 gpm"))
     found = {f.where["pipe"]: f for f in c.rule("velocity.hot-limit")}
     assert "H3" in found
-    assert found["H3"].limit == pytest.approx(5 * FT)  # NSPC 10.14.1 hot in copper (CHECKS.md, C)
+    assert found["H3"].limit == pytest.approx(5 * FT)  # NSPC 10.14.1 hot in copper (C)
 
 
 def test_hot_velocity_quiet_under_5_ft_per_s(check):
@@ -91,7 +91,7 @@ def test_hot_velocity_in_plastic_takes_the_general_limit(check):
 
 
 def test_si_profile_hot_limit_by_temperature(check):
-    # BS 6700 (CHECKS.md, C): 3.0 m/s at 10-50 degC, 2.5 at 70, 2.0 at 90. Hot water at 140 degF
+    # BS 6700 (C): 3.0 m/s at 10-50 degC, 2.5 at 70, 2.0 at 90. Hot water at 140 degF
     # (60 degC) takes the 70 degC row (the next hotter one; no interpolation).
     c = check(_hot_flat("4.5 gpm"), profile="si-default")
     v = c.analysis.pipe("H3").velocity_m_per_s
@@ -109,7 +109,7 @@ def test_si_profile_hot_limit_by_temperature(check):
 def test_static_limit_fires_over_80_psi_without_a_prv(check):
     c = check(one_pipe(static="90 psi"))
     (f,) = c.rule("pressure.static-limit")
-    assert f.limit == pytest.approx(80 * PSI)  # UPC 608.2 / IRC P2903.3.1 (CHECKS.md, C)
+    assert f.limit == pytest.approx(80 * PSI)  # UPC 608.2 / IRC P2903.3.1 (C)
     assert f.measured == pytest.approx(90 * PSI)
     assert f.where == {"node": "K", "fixture": "SINK", "side": "cold",
                        "description": "unit 4, sink"}
@@ -168,7 +168,7 @@ def test_static_limit_names_a_prv_set_too_high(check):
 
 # ------------------------------------------------------------------ minimum flowing pressure
 def test_minimum_flowing_fires_for_a_flush_valve_short_of_35_psi(check):
-    # IPC Table 604.3 (CHECKS.md, C): siphonic flushometer 25 gpm @ 35 psi. 30 psi static supply.
+    # IPC Table 604.3 (C): siphonic flushometer 25 gpm @ 35 psi. 30 psi static supply.
     c = check(one_pipe(static="30 psi", size="1", kind="water-closet-flush-valve", flow="25 gpm"))
     (f,) = c.rule("pressure.minimum-flowing")
     assert f.limit == pytest.approx(35 * PSI, rel=1e-6)
@@ -227,7 +227,7 @@ def test_peak_limit_fires_for_an_unprotected_solenoid(check):
     (f,) = c.rule("surge.peak-limit")
     assert f.where["event"] == "WASHER:cold"
     assert f.measured == pytest.approx(e.peak_pressure_pa)
-    assert f.limit == pytest.approx(150 * PSI)  # the arrestor standards' 150 psi (CHECKS.md)
+    assert f.limit == pytest.approx(150 * PSI)  # the arrestor standards' 150 psi
 
 
 def test_peak_limit_quiet_once_the_valve_is_protected(check):

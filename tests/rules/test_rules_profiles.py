@@ -53,7 +53,7 @@ def test_us_default_values():
 
 
 def test_si_default_values():
-    # BS 6700 (CHECKS.md, C): 3.0 m/s at 10-50 degC, 2.5 m/s at 70 degC, 2.0 m/s at 90 degC.
+    # BS 6700 (C): 3.0 m/s at 10-50 degC, 2.5 m/s at 70 degC, 2.0 m/s at 90 degC.
     p = load_profile("si-default")
     hot = p.params("velocity.hot-limit")
     assert hot["table_temperatures_c"] == [50, 70, 90]
@@ -122,7 +122,7 @@ def test_error_unknown_rule(write):
 def test_error_unknown_parameter(write):
     _err(write, '[rules."velocity.cold-limit"]\nmax_speed = 2\n',
          r"rule \"velocity.cold-limit\": field 'max_speed': unknown parameter; this rule takes: "
-         r"enabled, severity, max_velocity_m_per_s")
+         r"enabled, severity, basis, max_velocity_m_per_s")
 
 
 def test_error_wrong_unit(write):

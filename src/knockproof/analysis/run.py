@@ -8,7 +8,7 @@ from pathlib import Path
 import networkx as nx
 
 from knockproof.analysis.events import STRONG_REFLECTION, closure_events
-from knockproof.analysis.steady import steady_flow, water_at
+from knockproof.analysis.steady import pressure_assumptions, steady_flow, water_at
 from knockproof.model.loader import load_building
 from knockproof.network import build_tree
 from knockproof.results import Analysis
@@ -16,7 +16,7 @@ from knockproof.results import Analysis
 ASSUMPTIONS = (
     "Design flow from water-supply fixture units (IPC Appendix E, Tables E103.3(2) and (3)), flush-"
     "valve curve where a flush valve is downstream, never less than the largest single fixture flow.",
-    "Each closing valve stops its fixture's rated flow; the rest of the demand flows on.",
+    "Each closing valve stops its fixture's flow at line pressure; the rest of the demand flows on.",
     "Wave speed by Korteweg's formula with the pipe's restraint factor; water density and adiabatic "
     "bulk modulus from IAPWS-97 (within 0.4 % of IAPWS-95) at the side's temperature.",
     f"A junction reflecting {STRONG_REFLECTION:.0%} or more of an arriving wave (or the supply) bounds "
@@ -45,7 +45,7 @@ def analyze_tree(tree: nx.DiGraph, simultaneous: bool = False) -> Analysis:
         pipes=pipes,
         nodes=nodes,
         events=events,
-        assumptions=ASSUMPTIONS,
+        assumptions=ASSUMPTIONS + pressure_assumptions(b),
         timings_s={"steady_flow": t1 - t0, "events": t2 - t1},
     )
 

@@ -2,8 +2,16 @@
 
 Design flow in each pipe comes from the water-supply fixture units downstream of it (IPC Appendix E,
 Table E103.3(3)), flush-valve curve where a flush valve is downstream, never less than the largest
-single fixture flow downstream (one fixture open alone must be served); continuous loads (fixtures
-marked ``continuous``) add their flow on top, as the model code adds continuous demand in gpm.
+single fixture flow downstream (one fixture open alone must be served) and never more than the sum of
+the flows of every fixture downstream (all open at once: no 4 gpm in a branch to one 0.5 gpm
+faucet); fixture flows are those at line pressure (:mod:`knockproof.model.line_pressure`).
+Continuous loads (fixtures marked ``continuous``) add their flow on top, as the model code adds
+continuous demand in gpm.
+
+Pressures: the static pressure at each node starts from the supply's ``static_pressure_pa`` (the
+highest it holds); the residual (flowing) pressure starts from its ``minimum_pressure_pa`` (the
+lowest, at peak demand) where the file gives one, else from the static pressure, less the friction
+loss at design flow.
 Cold pipes upstream of a water heater also carry its hot demand; a fixture drawing both sides
 through the same pipe counts with its *total* fixture units (Table E103.3(2)), as the model code's
 method does.
@@ -67,6 +75,7 @@ def _demand_units(
     continuous: dict[str, float] = {}
     flush: dict[str, bool] = {}
     largest: dict[str, float] = {}
+    total: dict[str, float] = {}
     heater_feed: dict[str, str] = {}  # hot root -> cold node feeding it
     for s in building.supplies:
         if s.fed_from is not None:
@@ -112,18 +121,21 @@ def _demand_units(
                 add(pid, f.fixture_units_hot, f)
             if hot_root in heater_feed:
                 feed_path = set(path(heater_feed[hot_root]))
+        hot_path = set(path(f.hot_node)) if f.hot_node is not None else set()
         for pid in cold_path:
             add(pid, f.fixture_units_total if pid in feed_path else f.fixture_units_cold, f)
         for pid in feed_path - cold_path:
             add(pid, f.fixture_units_hot, f)
-    return units, flush, largest, continuous
+        for pid in cold_path | hot_path | feed_path:
+            total[pid] = total.get(pid, 0.0) + f.flow_m3_per_s
+    return units, flush, largest, continuous, total
 
 
 def steady_flow(tree: nx.DiGraph) -> tuple[tuple[PipeResult, ...], tuple[NodeResult, ...]]:
     """Design flow, velocity, friction loss and wave speed of every pipe; pressures at every node."""
     building: Building = tree.graph["building"]
     waters = {side: water_at(building.temperature_c(side)) for side in ("cold", "hot")}
-    units, flush, largest, continuous = _demand_units(tree, building)
+    units, flush, largest, continuous, total = _demand_units(tree, building)
     pipe_results: dict[str, PipeResult] = {}
     for u, v, p in tree.edges(data="pipe"):
         side = tree.nodes[v]["side"]
@@ -132,7 +144,10 @@ def steady_flow(tree: nx.DiGraph) -> tuple[tuple[PipeResult, ...], tuple[NodeRes
         fu = units.get(p.id, 0.0)
         fv = flush.get(p.id, False)
         q = (
-            max(demand.design_flow_m3_per_s(fu, fv), largest.get(p.id, 0.0))
+            min(
+                max(demand.design_flow_m3_per_s(fu, fv), largest.get(p.id, 0.0)),
+                total.get(p.id, 0.0),
+            )
             if fu > 0
             else (largest.get(p.id, 0.0))
         ) + continuous.get(p.id, 0.0)
@@ -195,7 +210,9 @@ def _pressures(
             residual[s.node] = residual[s.fed_from] - rho_g * dz
         else:
             static[s.node] = s.static_pressure_pa or 0.0
-            residual[s.node] = static[s.node]
+            residual[s.node] = (
+                s.minimum_pressure_pa if s.minimum_pressure_pa is not None else static[s.node]
+            )
         if s.node in prv:
             static[s.node] = min(static[s.node], prv[s.node])
             residual[s.node] = min(residual[s.node], prv[s.node])
@@ -214,4 +231,29 @@ def _pressures(
                 n, data["side"], data["elevation_m"], static[n], residual[n], data.get("label", "")
             )
         )
+    return tuple(out)
+
+
+def pressure_assumptions(building: Building) -> tuple[str, ...]:
+    """What the analysis assumed about the supplies' two pressures, one line per case, for the
+    report's assumptions."""
+    one = [s.node for s in building.supplies
+           if s.static_pressure_pa is not None and s.minimum_pressure_pa is None]
+    two = [s.node for s in building.supplies if s.minimum_pressure_pa is not None]
+    out: list[str] = []
+    if two:
+        out.append(
+            "Supplies " + ", ".join(two) + " give a static pressure (surge, static-limit and rating "
+            "checks) and a minimum pressure at peak demand (flowing-pressure checks)."
+        )
+    if one:
+        out.append(
+            "Supplies " + ", ".join(one) + " give one pressure: it is taken as both the static "
+            "pressure and the pressure at peak demand (give minimum_pressure to check flowing "
+            "pressures at the lowest the supply holds)."
+        )
+    out.append(
+        "Each fixture's closing flow is its rated flow scaled to the static pressure at its node "
+        "as an orifice (Q ~ sqrt(p)), or held by a flow regulator, unless the file gives the flow."
+    )
     return tuple(out)

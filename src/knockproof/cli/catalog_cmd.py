@@ -60,13 +60,14 @@ def command(
             console.print(t)
     if section in ("fixtures", "all"):
         t = Table(title="Fixture kinds", title_justify="left", show_edge=False)
-        for c in ("key", "sides", "flow", "valve", "closure", "quick", "WSFU priv/pub"):
-            t.add_column(c)
+        for c in ("key", "sides", "rated flow", "valve", "closure", "quick", "WSFU priv/pub"):
+            t.add_column(c, no_wrap=c == "key")
         for k in catalog.fixture_kinds():
             t.add_row(
                 k.key,
                 "+".join(k.sides),
-                fmt(k.flow_m3_per_s, "flow", units, 2),
+                f"{fmt(k.rated_flow_m3_per_s, 'flow', units, 2)} at "
+                f"{fmt(k.rated_pressure_pa, 'pressure', units, 0)}",
                 k.valve,
                 fmt(k.closure_time_s, "time", units, 0),
                 "yes" if k.quick_closing else "no",

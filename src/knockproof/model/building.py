@@ -21,9 +21,13 @@ DeviceKind = Literal["prv", "check-valve", "backflow-preventer", "expansion-tank
 class Supply:
     """A point where water enters the tree (a root).
 
-    ``static_pressure_pa`` is the gauge static pressure at the node with no flow. For a heater outlet
-    fed from a node of the cold side (``fed_from``), it is derived from that node and may be ``None``
-    here until the steady analysis computes it.
+    ``static_pressure_pa`` is the gauge static pressure at the node with no flow, the highest the
+    supply holds: surge, static-limit and rating checks use it. ``minimum_pressure_pa`` is the
+    lowest pressure it holds at peak demand (a street main's pressure at peak hour, a booster's cut-
+    in): flowing-pressure checks use it; ``None`` when the file gives one value, and the static
+    pressure serves for both. For a heater outlet fed from a node of the cold side (``fed_from``),
+    both are derived from that node and may be ``None`` here until the steady analysis computes
+    them.
     """
 
     node: str
@@ -33,6 +37,7 @@ class Supply:
     elevation_m: float
     fed_from: str | None = None
     line: int | None = None
+    minimum_pressure_pa: float | None = None
 
 
 @dataclass(frozen=True)
@@ -62,8 +67,12 @@ class Fixture:
 
     ``cold_node`` / ``hot_node`` are the nodes of the cold and hot trees its valves sit on (``None``
     for a side it does not draw). ``flow_m3_per_s`` is the flow through one side's valve at the moment
-    it closes (the fixture's rated flow, or the user's override). ``quick_closing`` says whether its
-    valve closes fast enough to need an arrestor by the trade's practice.
+    it closes: the kind's rated flow scaled to the static pressure at its node (``flow_pressure_pa``,
+    see :mod:`knockproof.model.line_pressure`), or the file's flow. ``flow_source`` says which:
+    ``"catalogue"``, ``"file"`` (a flow used as given) or ``"file-rated"`` (a flow the file rates at
+    ``rated_pressure_pa``, scaled). ``closure_time_fastest_s`` is the low end of the closing-time
+    range (the verdict uses ``closure_time_s``). ``quick_closing`` says whether its valve closes
+    fast enough to need an arrestor by the trade's practice.
     """
 
     id: str
@@ -82,6 +91,11 @@ class Fixture:
     label: str = ""
     line: int | None = None
     continuous: bool = False
+    flow_source: str = "catalogue"
+    flow_pressure_pa: float | None = None
+    rated_flow_m3_per_s: float = 0.0
+    rated_pressure_pa: float | None = None
+    closure_time_fastest_s: float | None = None
 
     @property
     def sides(self) -> tuple[Side, ...]:

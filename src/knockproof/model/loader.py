@@ -26,6 +26,7 @@ from knockproof.model.building import (
     Side,
     Supply,
 )
+from knockproof.model.line_pressure import static_pressures, with_line_flows
 from knockproof.model.lines import LineIndex
 from knockproof.model.schema import (
     ArrestorIn,
@@ -395,8 +396,42 @@ def building_from_document(doc: BuildingFile, lines: LineIndex, file: str) -> Bu
         if s.kind == "heater-outlet" and s.side != "hot":
             c.add(item, "side", 'a heater outlet supplies the hot side; set side = "hot"', key)
         elev = c.q(s.elevation, "length", item, "elevation", key, "elevation")
+        mp = c.q(
+            s.minimum_pressure, "pressure", item, "minimum_pressure", key, "static_pressure"
+        )
+        if s.minimum_pressure is not None and mp is not None:
+            if mp <= 0:
+                c.add(
+                    item,
+                    "minimum_pressure",
+                    f"must be more than zero, found {_shown(s.minimum_pressure)}",
+                    key,
+                )
+                mp = None
+            elif sp is not None and mp > sp * (1 + 1e-9):
+                c.add(
+                    item,
+                    "minimum_pressure",
+                    f"{_shown(s.minimum_pressure)} is above static_pressure "
+                    f"{_shown(s.static_pressure)}; the minimum (at peak demand) cannot exceed "
+                    "the static pressure (no flow)",
+                    key,
+                )
+                mp = None
+            elif sp is None:
+                c.add(
+                    item,
+                    "minimum_pressure",
+                    "needs static_pressure too (a heater outlet with 'fed_from' takes both "
+                    "from the cold side)",
+                    key,
+                )
+                mp = None
         supplies.append(
-            Supply(s.node, s.kind, s.side, sp, elev or 0.0, s.fed_from, lines.line(key))
+            Supply(
+                s.node, s.kind, s.side, sp, elev or 0.0, s.fed_from, lines.line(key),
+                minimum_pressure_pa=mp,
+            )
         )
 
     pipes: list[Pipe] = []
@@ -476,6 +511,11 @@ def building_from_document(doc: BuildingFile, lines: LineIndex, file: str) -> Bu
 
     if c.problems:
         raise InputError(_fold_repeats(c.problems))
+    from knockproof.physics.water import density
+
+    densities = {"cold": density(cold_t), "hot": density(hot_t)}
+    static = static_pressures(supplies, pipes, devices, densities)
+    fixtures = with_line_flows(fixtures, static)
     node_labels: dict[str, str] = {}  # labels follow the oriented tree (network/build.py)
     profile = b.profile or ("si-default" if units == "si" else "us-default")
     return Building(
@@ -601,8 +641,18 @@ def _fixture(c: _Collector, it: Expanded, n: int, default_use: str) -> Fixture |
             c.add(item, side, f"kind '{kind.key}' draws {' and '.join(kind.sides)} water only", key)
             return None
     flow = c.q(f.flow, "flow", item, "flow", key, "flow", positive=True)
+    flow_p = c.q(
+        f.flow_pressure, "pressure", item, "flow_pressure", key, "static_pressure", positive=True
+    )
+    if f.flow_pressure is not None and f.flow is None:
+        c.add(item, "flow_pressure", "is the pressure of a given 'flow'; give 'flow' too", key)
+        return None
     closure = c.q(f.closure_time, "time", item, "closure_time", key, "closure_time", positive=True)
-    if (f.flow is not None and flow is None) or (f.closure_time is not None and closure is None):
+    if (
+        (f.flow is not None and flow is None)
+        or (f.flow_pressure is not None and flow_p is None)
+        or (f.closure_time is not None and closure is None)
+    ):
         return None
     use = f.use or default_use
     units = kind.wsfu_public if use == "public" else kind.wsfu_private
@@ -613,7 +663,7 @@ def _fixture(c: _Collector, it: Expanded, n: int, default_use: str) -> Fixture |
         kind=kind.key,
         cold_node=f.cold if f.node is None else f.node,
         hot_node=f.hot,
-        flow_m3_per_s=flow if flow is not None else kind.flow_m3_per_s,
+        flow_m3_per_s=flow if flow is not None else kind.flow_at(kind.rated_pressure_pa, use),
         closure_time_s=closure if closure is not None else kind.closure_time_s,
         valve=valve,
         quick_closing=quick,
@@ -625,6 +675,12 @@ def _fixture(c: _Collector, it: Expanded, n: int, default_use: str) -> Fixture |
         label=it.label,
         line=c.lines.line(key),
         continuous=f.continuous,
+        flow_source="catalogue" if flow is None else ("file" if flow_p is None else "file-rated"),
+        rated_flow_m3_per_s=(
+            flow if flow is not None else kind.flow_at(kind.rated_pressure_pa, use)
+        ),
+        rated_pressure_pa=flow_p if flow is not None else kind.rated_pressure_pa,
+        closure_time_fastest_s=closure if closure is not None else kind.closure_time_fastest_s,
     )
 
 

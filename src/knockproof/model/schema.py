@@ -69,8 +69,15 @@ class SupplyIn(_Strict):
     side: SideName = "cold"
     static_pressure: Quantity | None = Field(
         None,
-        description="Gauge static pressure at the node with no flow (not needed for a heater "
-        "outlet with fed_from).",
+        description="Gauge static pressure at the node with no flow, the highest the supply "
+        "holds (not needed for a heater outlet with fed_from). Surge, static and rating checks "
+        "use it.",
+    )
+    minimum_pressure: Quantity | None = Field(
+        None,
+        description="Gauge pressure at the node at peak demand, the lowest the supply holds "
+        "(e.g. the main's pressure at peak hour). Flowing-pressure checks use it; when absent "
+        "they use static_pressure.",
     )
     elevation: Quantity = Field(0, description="Elevation of the node.")
     fed_from: Name | None = Field(
@@ -107,7 +114,14 @@ class FixtureIn(_Strict):
         None,
         description="Shorthand for a fixture that draws one side: the side of this node's tree.",
     )
-    flow: Quantity | None = Field(None, description="Override of the flow through a valve.")
+    flow: Quantity | None = Field(
+        None,
+        description="Override of the flow through a valve as it closes: used as given, or, with "
+        "flow_pressure, scaled to the node's static pressure as an orifice (Q ~ sqrt(p)).",
+    )
+    flow_pressure: Quantity | None = Field(
+        None, description="The pressure at which 'flow' is rated (e.g. a maker's '1.5 gpm at 60 psi')."
+    )
     closure_time: Quantity | None = Field(None, description="Override of the valve closure time.")
     valve: (
         Literal["solenoid", "self-closing", "lever", "flush-valve", "manual", "sensor"] | None

@@ -255,6 +255,7 @@ def findings_context(review: Any, unit_system: str) -> list[dict[str, Any]]:
                                  if k in ("node", "pipe", "event", "arrestor") and v),
                 "message": str(_get(first, "message", "")),
                 "recommendation": str(_get(first, "recommendation", "")),
+                "basis": str(_get(first, "basis", "")),
                 "alike": len(members) - 1,
                 "alike_named": named,
                 "alike_more": more,

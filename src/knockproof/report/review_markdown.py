@@ -47,17 +47,17 @@ def review_markdown(review: Review, limit: int = 0) -> str:
             if not found:
                 continue
             lines += [f"### {rid} ({found[0].severity})", "",
-                      "| where | finding | measured | limit | recommendation |",
-                      "|---|---|---:|---:|---|"]
+                      "| where | finding | measured | limit | recommendation | basis |",
+                      "|---|---|---:|---:|---|---|"]
             shown = found if limit <= 0 else found[:limit]
             for f in shown:
                 lines.append(
                     f"| {_cell(f.description)} | {_cell(f.message)} | "
                     f"{show_quantity(f.measured, f.unit, u)} | {show_quantity(f.limit, f.unit, u)} "
-                    f"| {_cell(f.recommendation)} |"
+                    f"| {_cell(f.recommendation)} | {_cell(f.basis)} |"
                 )
             if len(found) > len(shown):
-                lines.append(f"| ... and {len(found) - len(shown)} more | | | | |")
+                lines.append(f"| ... and {len(found) - len(shown)} more | | | | | |")
             lines.append("")
     sizes = ", ".join(f"{k}: {v}" for k, v in review.counts_by_size.items()) or "none"
     lines += ["## Arrestor schedule", "", f"{len(review.arrestors)} arrestors; by size class: "

@@ -44,6 +44,8 @@ def _finding_line(f: Finding) -> Text:
     if f.recommendation:
         text.append(" Recommended: ", style="bold")
         text.append(f.recommendation + ".")
+    if f.basis:
+        text.append(f" [{f.basis}]", style="dim")
     return text
 
 

@@ -60,6 +60,7 @@ def _checks(ctx: Context, problem: str) -> Iterator[tuple[ArrestorRecommendation
     "Model code, from memory: IPC 604.9 and UPC 609.10 require water-hammer arrestors (ASSE 1010) "
     "where quick-closing valves are used.",
     {"only_when_peak_exceeds_limit": False, "limit_pa": LIMIT_150_PSI_PA},
+    citation="IPC 2021 §604.9; UPC 2021 §609.10 (from memory); ASSE 1010",
 )
 def required(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """Every quick-closing valve needs protection, each side apart (the model code's wording).
@@ -85,6 +86,7 @@ def required(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "Common practice: 'as close as possible to the quick-closing valve' (UPC 609.10 wording, from "
     "memory); no code gives a distance, the default is our choice.",
     {"max_distance_m": 6.0 * FT_M},
+    citation="common practice (UPC 2021 §609.10 wording, from memory)",
 )
 def placement(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """Distance along the pipes from the shown arrestor to the node the schedule recommends: at the
@@ -106,10 +108,11 @@ def placement(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "arrestor.branch-length",
     "A branch over 20 ft takes two arrestors, one near the middle and one at the end",
     "error",
-    "The arrestor standard's placement rule (PDI-WH 201, from memory; CHECKS.md): branch up to "
+    "The arrestor standard's placement rule (PDI-WH 201, from memory): branch up to "
     "20 ft, one arrestor at the end between the last two fixtures; longer, two whose ratings "
     "together cover the branch.",
     {"single_arrestor_max_branch_m": 20.0 * FT_M},
+    citation="PDI-WH 201 placement rule (from memory)",
 )
 def branch_length(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """A branch runs from its tee (the node where the valves' pressure waves reflect off a larger
@@ -134,7 +137,7 @@ def branch_length(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "Size class by fixture units (AA for a single residential appliance)",
     "error",
     "Size classes and fixture-unit weights of the arrestor standards PDI-WH 201 / ASSE 1010 "
-    "(classes C, pmmag.com; ranges and weights from memory, CHECKS.md); AA for single residential "
+    "(classes C, pmmag.com; ranges and weights from memory); AA for single residential "
     "appliances (ASSE 1010, C); separate hot and cold lines take 3/4 of a fixture's weight (from "
     "memory).",
     {
@@ -142,6 +145,7 @@ def branch_length(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
         "aa_for_single_residential_appliance": True,
         "single_appliance_kinds": ["clothes-washer", "dishwasher", "ice-maker"],
     },
+    citation="PDI-WH 201; ASSE 1010 (sizes and fixture-unit method)",
 )
 def size_class(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """The load of an arrestor is the sum of the standard's weights of the valves it protects
@@ -178,7 +182,7 @@ def size_class(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "arrestor.gas-volume",
     "Gas volume by the energy method holds the surge to the limit",
     "error",
-    "Energy method (Dawson & Kalinske, J. AWWA 1939, from memory; formula in CHECKS.md): the water "
+    "Energy method (Dawson & Kalinske, J. AWWA 1939, from memory; formula in docs/sources.md): the water "
     "column's kinetic energy compresses the gas from P1 (static, absolute) to P2 (the limit, "
     "absolute); polytropic, n = 1.4 by default (rapid, nearly adiabatic compression).",
     {"polytropic_exponent": 1.4, "limit_pa": LIMIT_150_PSI_PA, "atmospheric_pa": ATM_PA},
@@ -223,8 +227,9 @@ def gas_volume(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "arrestor.both-sides",
     "Hot and cold sides both protected",
     "error",
-    "The arrestor standard's practice, from memory (CHECKS.md): hot and cold are sized separately "
+    "The arrestor standard's practice, from memory: hot and cold are sized separately "
     "and both protected.",
+    citation="PDI-WH 201 practice (from memory)",
 )
 def both_sides(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """A finding where the schedule needs an arrestor on one side of some fixtures, nothing is shown
@@ -245,6 +250,7 @@ def both_sides(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "info",
     "Screening aid (our own): an arrestor the schedule does not call for is not wrong, but it may "
     "sit where the designer meant another.",
+    citation="knockproof screening aid (no code)",
 )
 def redundant(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """A shown arrestor that answers no recommended one (none on its side within its branch or

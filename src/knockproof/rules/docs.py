@@ -114,7 +114,9 @@ def rules_markdown() -> str:
         out.append(f"| [`{r.id}`](#{r.id.replace('.', '')}) | {_cell(r.title)} | {r.severity} |")
     for r in rules.values():
         out += ["", f"### {r.id}", "", f"{r.title}.", "",
-                f"- Severity: {r.severity}", f"- Basis: {r.basis}", "", r.notes, ""]
+                f"- Severity: {r.severity}", f"- Basis: {r.basis}",
+                f"- Cited beside each finding as: {r.short_basis} (a profile may set its own; "
+                "see docs/sources.md for every published value)", "", r.notes, ""]
         if r.parameters:
             out += ["| parameter | default |", "|---|---|"]
             for name, value in r.parameters.items():

@@ -50,6 +50,10 @@ class Finding:
         ``"fixture units"``; ``""`` when there is no number.
     recommendation : str
         What to do about it.
+    basis : str
+        The code, section and edition (or standard, or "common practice") the finding rests on,
+        e.g. ``"IPC 2021 §604.8"``: the profile's ``basis`` for the rule, else the rule's
+        citation. Never empty in a review.
     figure : str
         For a finding on a pressure: which calculation the number comes from and why
         (``"simulated; the simulation covered the whole event"``, ``"closed-form bound; ..."``);
@@ -64,6 +68,7 @@ class Finding:
     limit: float | None = None
     unit: str = ""
     recommendation: str = ""
+    basis: str = ""
     figure: str = ""
 
     @property
@@ -90,7 +95,11 @@ class Rule:
         Default severity of its findings.
     basis : str
         Where the rule and its default numbers come from (a published source, a model-code clause
-        "from memory", or "common practice").
+        "from memory", or "common practice"), in full.
+    citation : str
+        The same in short, as shown beside each finding: code, section and edition
+        (``"IPC 2021 §604.9"``), a standard (``"ASSE 1010"``) or ``"common practice"``. When
+        empty, findings show the full basis.
     parameters : dict[str, Any]
         Parameter name -> default (SI, unit in the name).
     check : callable
@@ -109,6 +118,12 @@ class Rule:
     check: Check = field(compare=False)
     notes: str = ""
     validate: Validate | None = field(default=None, compare=False)
+    citation: str = ""
+
+    @property
+    def short_basis(self) -> str:
+        """What a finding of this rule shows as its basis."""
+        return self.citation or self.basis
 
 
 _REGISTRY: dict[str, Rule] = {}
@@ -122,6 +137,7 @@ def rule(
     parameters: Mapping[str, Any] | None = None,
     notes: str = "",
     validate: Validate | None = None,
+    citation: str = "",
 ) -> Callable[[Check], Check]:
     """Register the decorated function as the check of a rule (the function itself is returned)."""
     if severity not in SEVERITIES:
@@ -132,7 +148,7 @@ def rule(
             raise ValueError(f"rule {id!r} is registered twice")
         text = notes or " ".join((check.__doc__ or "").split())
         _REGISTRY[id] = Rule(id, title, severity, basis, dict(parameters or {}), check, text,
-                             validate)
+                             validate, citation)
         return check
 
     return register
@@ -163,5 +179,6 @@ def new_finding(
     figure: str = "",
 ) -> Finding:
     """A finding of ``rule_id`` at the rule's default severity (the engine applies overrides)."""
-    return Finding(rule_id, _REGISTRY[rule_id].severity, where, message, measured, limit, unit,
-                   recommendation, figure)
+    r = _REGISTRY[rule_id]
+    return Finding(rule_id, r.severity, where, message, measured, limit, unit, recommendation,
+                   r.short_basis, figure)

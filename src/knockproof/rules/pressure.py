@@ -40,6 +40,7 @@ def _fixture_nodes(ctx: Context) -> dict[str, list[str]]:
     "UPC 608.2 (C, forms.iapmo.org) and IRC P2903.3.1 (C, jaspector.com): static pressure above "
     "80 psi needs an approved pressure-reducing valve to bring it to 80 psi or less.",
     {"limit_pa": 80.0 * PSI_PA},
+    citation="IPC 2021 §604.8; UPC §608.2; IRC 2021 §P2903.3.1",
 )
 def static_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """Static pressure (no flow) at every node where a fixture draws, against limit_pa. The message
@@ -80,6 +81,7 @@ def static_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "_minimum_pressures.toml.",
     {"default_minimum_pa": 8.0 * PSI_PA,
      "minimum_pa_by_kind": {k: v for k, (v, _s) in minimum_pressures().items()}},
+    citation="IPC 2021 §604.3 and Table 604.3",
 )
 def minimum_flowing(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """The residual pressure (flowing at design flow) at each side's node of every fixture, against

@@ -9,6 +9,7 @@ A profile file looks like this::
     [rules."velocity.cold-limit"]
     enabled = true                     # optional
     severity = "error"                 # optional: "error", "warning" or "info"
+    basis = "BS 6700:1997"             # optional: the code the findings cite under this profile
     max_velocity_m_per_s = "7 ft/s"    # a number in the unit the name says, or a string with a unit
 
 Parameters take their unit from their name (``_m``, ``_m_per_s``, ``_pa`` gauge, ``_m3``, ``_c``,
@@ -57,6 +58,7 @@ class RuleSetting:
     enabled: bool
     severity: Severity
     params: dict[str, Any] = field(hash=False)
+    basis: str = ""
 
 
 @dataclass(frozen=True)
@@ -87,6 +89,10 @@ class Profile:
 
     def severity(self, rule_id: str) -> Severity:
         return self.settings[rule_id].severity
+
+    def basis(self, rule_id: str) -> str:
+        """The basis findings of ``rule_id`` cite: the profile's own, else the rule's citation."""
+        return self.settings[rule_id].basis or registry()[rule_id].short_basis
 
 
 def bundled_profiles() -> list[str]:
@@ -215,6 +221,7 @@ def _parse(text: str, file: str, chain: tuple[str, ...]) -> Profile:
             continue
         old = settings[rule_id]
         enabled, severity, params = old.enabled, old.severity, dict(old.params)
+        basis = old.basis
         defaults = rules[rule_id].parameters
         for key, value in table.items():
             where = line(rule_id, key)
@@ -230,8 +237,15 @@ def _parse(text: str, file: str, chain: tuple[str, ...]) -> Profile:
                                             f"{', '.join(SEVERITIES)}, found {value!r}", where))
                 else:
                     severity = value
+            elif key == "basis":
+                if not isinstance(value, str) or not value.strip() or len(value) > 300:
+                    problems.append(Problem(file, item, key, "expected the code, section and "
+                                            "edition as text (1 to 300 characters), found "
+                                            f"{value!r}", where))
+                else:
+                    basis = value.strip()
             elif key not in defaults:
-                known = ", ".join(["enabled", "severity", *defaults])
+                known = ", ".join(["enabled", "severity", "basis", *defaults])
                 problems.append(Problem(file, item, key, f"unknown parameter; this rule takes: "
                                         f"{known}", where))
             else:
@@ -243,7 +257,7 @@ def _parse(text: str, file: str, chain: tuple[str, ...]) -> Profile:
         if check_together is not None:
             for key, message in check_together(params):
                 problems.append(Problem(file, item, key, message, line(rule_id, key)))
-        settings[rule_id] = RuleSetting(enabled, severity, params)
+        settings[rule_id] = RuleSetting(enabled, severity, params, basis)
     if problems:
         raise InputError(problems)
     stem = Path(file.removesuffix(" (bundled)")).stem

@@ -130,8 +130,11 @@ def review(tree: nx.DiGraph, analysis: Analysis, profile: Profile | str | Path |
             continue
         applied.append(rule_id)
         severity = prof.severity(rule_id)
+        basis = prof.basis(rule_id)
         for f in r.check(ctx, prof.params(rule_id)):
-            findings.append(f if f.severity == severity else replace(f, severity=severity))
+            if f.severity != severity or f.basis != basis:
+                f = replace(f, severity=severity, basis=basis)
+            findings.append(f)
     verdicts = _valve_verdicts(ctx)
     verdict: Verdict = "fail" if any(f.severity == "error" for f in findings) else "pass"
     return Review(

@@ -20,7 +20,7 @@ feeding ten apartments) stay separate branches.
 **Branch length.** Along the pipes from the branch start (its tee) to the last fixture, i.e. the
 furthest valve.
 
-**Placement** (the arrestor standard's rule, from memory, CHECKS.md). Branch up to 20 ft: one
+**Placement** (the arrestor standard's rule, from memory). Branch up to 20 ft: one
 arrestor for the branch total, at the end of the branch between the last two fixtures (the node
 where their supplies part), or at the valve when the branch has one. Longer branch: two, whose
 fixture-unit ratings together cover the branch: the fixtures whose take-off from the run lies in
@@ -32,8 +32,8 @@ washer, dishwasher, ice maker in private use) gets its own class AA arrestor at 
 (ASSE 1010's AA class).
 
 **Size class.** By the standard's fixture-unit weights (catalogue, public or private use); a
-fixture piped with separate hot and cold lines puts 3/4 of its weight on each side (CHECKS.md,
-from memory). The smallest class whose range holds the load.
+fixture piped with separate hot and cold lines puts 3/4 of its weight on each side (from
+memory). The smallest class whose range holds the load.
 
 **Gas volume.** Energy method (Dawson & Kalinske 1939, from memory): the kinetic energy
 1/2 rho L Q^2 / A of the valve's flow Q in every pipe from the valve back to the supply

@@ -78,6 +78,7 @@ def _event_where(ctx: Context, e: EventResult) -> dict[str, str]:
     "The arrestor standards' basis: arrestors are rated and sized to hold surges to 150 psi "
     "(ASSE 1010 rating 150 psi, C, standards.globalspec.com; PDI-WH 201 basis, from memory).",
     {"limit_pa": 150.0 * PSI_PA},
+    citation="ASSE 1010 (150 psi rating); PDI-WH 201 (from memory)",
 )
 def peak_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """Each closure event's highest peak anywhere it reaches (static + surge at the worst node: the
@@ -121,6 +122,7 @@ def peak_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "The pipe's pressure rating from the catalogue (the maker's or product standard's rating at "
     "the side's temperature).",
     {"rating_factor": 1.0},
+    citation="pipe product standard or maker's rating (catalogue)",
 )
 def pipe_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """For every closure event, the peak reaching each pipe whose ends the event reaches (the larger
@@ -191,6 +193,7 @@ def _device_nodes(ctx: Context, node: str, kind: str) -> list[str]:
     "The device's own rating as the designer gives it (rating = ... in [[device]], from the maker's "
     "data); a device with no rating is not checked.",
     {"rating_factor": 1.0},
+    citation="device maker's rated working pressure",
 )
 def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """For every device with a rating: the highest pressure at its node (for a water heater also
@@ -255,6 +258,7 @@ def component_rating(ctx: Context, params: Mapping[str, Any]) -> Iterator[Findin
     "overshoot the bare line's peak (Wylie & Streeter, Fluid Transients in Systems, 1993, on air "
     "chambers; from memory). Our rule: the simulation with and without the arrestors compared.",
     {"min_rise_pa": 0.5 * PSI_PA},
+    citation="knockproof screening aid (no code)",
 )
 def arrestor_raises_peak(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """For every event simulated both bare and with its scheduled arrestors, where the highest

@@ -18,6 +18,7 @@ from knockproof.rules.engine import Finding, new_finding, rule
     "check valve, backflow preventer or pressure-reducing valve closes the system to the street. "
     "A matter apart from water hammer.",
     {"closing_device_kinds": ["check-valve", "backflow-preventer", "prv"]},
+    citation="IPC 2021 §607.3; UPC 2021 §608.3 (from memory)",
 )
 def closed_no_expansion_tank(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """For each water heater (a water-heater device, or the node a heater outlet is fed from): if

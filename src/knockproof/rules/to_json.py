@@ -1,10 +1,11 @@
 """A :class:`~knockproof.rules.review.Review` as plain JSON-ready data.
 
 Key names are a fixed contract: ``verdict``, ``findings`` (each with ``rule``, ``severity``,
-``where``, ``message``, ``measured``, ``limit``, ``unit``, ``recommendation``, ``figure``),
-``arrestors`` (each with ``node``, ``side``, ``size_class``, ``gas_volume_m3``, ``protects`` and
-the rest). A value with a unit has it in its key name (SI); ``measured`` and ``limit`` name theirs
-in ``unit``.
+``where``, ``message``, ``measured``, ``limit``, ``unit``, ``recommendation``, ``basis``: the code,
+section and edition the finding rests on, ``figure``: for a pressure, which calculation it comes
+from), ``arrestors`` (each with ``node``, ``side``, ``size_class``, ``gas_volume_m3``,
+``protects`` and the rest). A value with a unit has it in its key name (SI); ``measured`` and
+``limit`` name theirs in ``unit``.
 """
 
 from __future__ import annotations
@@ -27,6 +28,7 @@ def finding_to_json(f: Finding) -> dict[str, Any]:
         "limit": _num(f.limit),
         "unit": f.unit,
         "recommendation": f.recommendation,
+        "basis": f.basis,
         "figure": f.figure,
     }
 

@@ -59,10 +59,11 @@ def _finding(ctx: Context, rule_id: str, pipe: PipeResult, limit: float) -> Find
     "Cold-water velocity at design flow under the limit",
     "warning",
     "National Standard Plumbing Code 10.14.1: 8 ft/s maximum (C, up.codes); SI profile: BS 6700, "
-    "3.0 m/s at 10-50 degC (C, as quoted in CHECKS.md).",
+    "3.0 m/s at 10-50 degC (C, as quoted on liquisearch.com).",
     {"max_velocity_m_per_s": 8.0 * FT_M, "table_temperatures_c": [],
      "table_max_velocities_m_per_s": []},
     validate=_table_ok,
+    citation="NSPC §10.14.1 (National Standard Plumbing Code)",
 )
 def cold_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """Every cold pipe's mean velocity at design flow against max_velocity_m_per_s, or, when the
@@ -80,12 +81,13 @@ def cold_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "Hot-water velocity at design flow under the limit",
     "warning",
     "National Standard Plumbing Code 10.14.1: 5 ft/s for hot water in copper, 8 ft/s otherwise (C, "
-    "up.codes); SI profile: BS 6700, 3.0 m/s at 10-50 degC, 2.5 at 70, 2.0 at 90 (C, as quoted in "
-    "CHECKS.md).",
+    "up.codes); SI profile: BS 6700, 3.0 m/s at 10-50 degC, 2.5 at 70, 2.0 at 90 (C, as quoted on "
+    "liquisearch.com).",
     {"max_velocity_m_per_s": 5.0 * FT_M, "materials": ["copper-*"],
      "other_materials_max_velocity_m_per_s": 8.0 * FT_M, "table_temperatures_c": [],
      "table_max_velocities_m_per_s": []},
     validate=_table_ok,
+    citation="NSPC §10.14.1; copper tube industry guidance",
 )
 def hot_limit(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """Every hot pipe of a material matching one of materials (patterns such as copper-*) against
