@@ -16,8 +16,10 @@ Rules chosen here (document of record):
   side), bounded by ``max_wave_speed_adjustment`` (default +10 %).
 * **Small adjustments first.** The step is looked for along a fine geometric ladder below the
   target (0.1 % rungs). First down to ``target / tight_refinement`` (default 1.5) for a step at
-  which every kept pipe is within ``tight_adjustment`` (default +1 %) - a single run or a small
-  zone nearly always has one, so its surges carry the pipes' true wave speeds to 1 %; failing
+  which every kept pipe is within ``-tight_lowering .. +tight_adjustment`` (defaults -0.2 % and
+  +1 %; the reaches then rounded with the -0.2 % limit) - a single pipe of two reaches or more
+  always has one (its travel time in steps passes a whole number as the step shrinks by 1.5) and
+  a small zone nearly always, so its surges carry the pipes' true wave speeds to 1 %; failing
   that, down to ``target / max_refinement`` (default 16) for a step at which every kept pipe is
   within ``max_wave_speed_adjustment``. The first (largest) step found is taken. Failing both,
   :class:`~knockproof.errors.SimulationError` names the pipe that does not fit.
@@ -124,6 +126,7 @@ def choose_grid(
     max_wave_speed_adjustment: float = 0.10,
     max_wave_speed_lowering: float = 0.01,
     tight_adjustment: float = 0.01,
+    tight_lowering: float = 0.002,
     tight_refinement: float = 1.5,
     max_refinement: float = 16.0,
     names: Sequence[str] | None = None,
@@ -146,9 +149,9 @@ def choose_grid(
         Largest allowed upward adjustment ``a'/a - 1`` [-].
     max_wave_speed_lowering : float
         Largest allowed downward adjustment ``1 - a'/a`` [-] (default 1 %).
-    tight_adjustment, tight_refinement : float
-        First look, down to ``target / tight_refinement``, for a step at which no upward
-        adjustment exceeds ``tight_adjustment`` [-].
+    tight_adjustment, tight_lowering, tight_refinement : float
+        First look, down to ``target / tight_refinement``, for a step at which every adjustment
+        lies within ``-tight_lowering .. +tight_adjustment`` [-].
     max_refinement : float
         The step may be refined down to ``target / max_refinement``.
     names : sequence of str, optional
@@ -190,9 +193,11 @@ def choose_grid(
         unique_travel,
         ladder[:tight_count],
         min(tight_adjustment, max_wave_speed_adjustment),
-        max_wave_speed_lowering,
+        min(tight_lowering, max_wave_speed_lowering),
     )
+    lowering = min(tight_lowering, max_wave_speed_lowering)
     if chosen is None:
+        lowering = max_wave_speed_lowering
         chosen = _first_fit(
             unique_travel, ladder, max_wave_speed_adjustment, max_wave_speed_lowering
         )
@@ -215,7 +220,7 @@ def choose_grid(
             "larger refinement, or give a time step"
         )
     x = travel / chosen
-    reaches = np.where(lumped, 0, reaches_for(x, max_wave_speed_lowering)).astype(np.int64)
+    reaches = np.where(lumped, 0, reaches_for(x, lowering)).astype(np.int64)
     adjusted = np.where(lumped, speed, length / (np.maximum(reaches, 1) * chosen))
     adjustment = np.where(lumped, 0.0, adjusted / speed - 1.0)
     return Grid(
