@@ -15,11 +15,37 @@ def test_reaches_and_adjustment_follow_the_rule():
 
 
 def test_adjustment_is_reported_and_bounded():
-    grid = choose_grid([10.4, 20.0], [1000.0, 1000.0], time_step_s=1e-3)
+    # no refinement allowed: the adjustment at the target step itself
+    grid = choose_grid(
+        [10.4, 20.0], [1000.0, 1000.0], time_step_s=1e-3, tight_refinement=1.0,
+        max_refinement=1.0,
+    )
     # 10.4 m at 1 m per reach -> 10 reaches, a' = 1040 m/s: +4 % (hand arithmetic)
     assert grid.reaches[0] == 10
     assert grid.wave_speed_m_per_s[0] == pytest.approx(1040.0)
     assert grid.largest_wave_speed_adjustment == pytest.approx(0.04)
+
+
+def test_wave_speed_is_raised_rather_than_lowered():
+    # 10.6 m at 1 m per reach: rounding to 11 reaches would give a' = 963.6 m/s (-3.6 %); the rule
+    # takes 10 reaches, a' = 1060 m/s (+6 %) (hand arithmetic)
+    grid = choose_grid(
+        [10.6, 20.0], [1000.0, 1000.0], time_step_s=1e-3, tight_refinement=1.0,
+        max_refinement=1.0,
+    )
+    assert grid.reaches[0] == 10
+    assert grid.wave_speed_m_per_s[0] == pytest.approx(1060.0)
+    assert grid.largest_wave_speed_adjustment == pytest.approx(0.06)  # signed, largest magnitude
+
+
+def test_small_adjustment_preferred_within_a_modest_refinement():
+    # 10.6 m and 20 m at 1000 m/s: at dt = 0.9618 ms, 11.02 and 20.79 travel steps -> 11 and 21
+    # reaches, within -1 % .. +1 % (hand arithmetic); the search must find such a step above
+    # 1 ms / 1.5
+    grid = choose_grid([10.6, 20.0], [1000.0, 1000.0], time_step_s=1e-3)
+    assert 1e-3 / 1.5 <= grid.time_step_s <= 1e-3
+    assert np.all(grid.adjustment >= -0.01 - 1e-12)
+    assert np.all(grid.adjustment <= 0.01 + 1e-12)
 
 
 def test_step_refined_when_an_adjustment_would_exceed_the_limit():
@@ -28,7 +54,8 @@ def test_step_refined_when_an_adjustment_would_exceed_the_limit():
     assert grid.time_step_s < 1e-3
     assert grid.largest_wave_speed_adjustment <= 0.10 + 1e-12
     x = np.array([1.5, 20.0]) / 1000.0 / grid.time_step_s
-    assert np.all(np.abs(x / grid.reaches - 1) <= 0.10 + 1e-12)
+    assert np.all(x / grid.reaches - 1 <= 0.10 + 1e-12)
+    assert np.all(x / grid.reaches - 1 >= -0.01 - 1e-12)  # never lowered by more than 1 %
 
 
 def test_default_step_from_percentile_and_stubs_lumped():

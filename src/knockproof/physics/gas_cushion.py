@@ -12,17 +12,44 @@ Polytropic gas (P V**n constant):          KE = P1 V1 [(r**((n-1)/n) - 1)/(n - 1
 The method treats the water column as rigid, which undersizes the cushion slightly (more so at
 larger r); a transient simulation should check a cushion sized this way.
 
+**One gas model for sizing and simulation.** The arrestor schedule sizes the gas with
+:data:`ARRESTOR_POLYTROPIC_EXPONENT` and the transient solver compresses the same gas with the same
+exponent (``knockproof.transient``: ``GasCushion``, ``CushionSpec``), so that a volume the energy
+method gives, simulated, lands on its design pressure (``tests/transient/test_transient_gas_cushion
+.py``). The exponent is 1.4, adiabatic air or nitrogen [3]: a quick-closing valve compresses an
+arrestor's charge in milliseconds to tens of milliseconds, too fast for heat to leave a small gas
+volume through its walls, and 1.4 is also the safe side both ways - for a given volume it gives the
+higher peak, and for a given peak the larger volume (the bracket below is smaller for larger n at
+a given r). Air chambers on long pipelines, whose gas swings for seconds, are often modelled nearer
+1.2 [3]; that is not the case of a fixture's arrestor.
+
+**Which state the volume is.** A volume from this module is the gas volume at ``P1``, the pressure
+the sizing states (the schedule: the static pressure at the arrestor, absolute). Before a closure
+the line flows and the pressure at the arrestor is the lower flowing pressure; the gas, given
+minutes, has taken it at the room's temperature (Boyle, ``V_f = V1 P1 / P_f``), and the surge then
+compresses it polytropically from there. The transient solver does exactly that. The energy
+balance from the flowing state absorbs more than the sizing assumed (the cushion is larger to
+first order in ``(P1 - P_f)/P1``, the supply's extra work is second order), so a volume sized at
+the static pressure is on the safe side of one sized at the flowing pressure.
+
 References
 ----------
 .. [1] F. M. Dawson and A. A. Kalinske, "Methods of calculating water-hammer pressures",
    J. AWWA 31 (1939) 1835-1864 (energy method for air chambers); from memory.
 .. [2] Any thermodynamics text for the work of isothermal and polytropic compression of an ideal
    gas, W = P1 V1 ln r and W = (P2 V2 - P1 V1)/(n - 1).
+.. [3] E. B. Wylie and V. L. Streeter, *Fluid Transients in Systems*, Prentice Hall, 1993, sec.
+   3.5 (air chamber: polytropic gas, n = 1 for slow, 1.4 for rapid compression, 1.2 a usual
+   average for pipeline air chambers); from memory.
 """
 
 from __future__ import annotations
 
 import math
+
+#: The polytropic exponent of an arrestor's gas, in sizing and in simulation alike [-]: adiabatic
+#: air or nitrogen (ratio of specific heats 1.40 at room temperature), see the module notes [3].
+ARRESTOR_POLYTROPIC_EXPONENT: float = 1.4
 
 #: Largest polytropic exponent accepted (monatomic gas, adiabatic) [-].
 MAX_POLYTROPIC_EXPONENT: float = 5.0 / 3.0

@@ -13,6 +13,7 @@ from typing import Any
 
 from knockproof.model.units import fmt, to_display, unit_label
 from knockproof.physics.constants import ATM_PA, FT_M, PSI_PA
+from knockproof.physics.gas_cushion import ARRESTOR_POLYTROPIC_EXPONENT
 from knockproof.rules.context import Context
 from knockproof.rules.engine import Finding, new_finding, rule
 from knockproof.rules.schedule import ArrestorRecommendation
@@ -185,7 +186,8 @@ def size_class(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     "Energy method (Dawson & Kalinske, J. AWWA 1939, from memory; formula in docs/sources.md): the water "
     "column's kinetic energy compresses the gas from P1 (static, absolute) to P2 (the limit, "
     "absolute); polytropic, n = 1.4 by default (rapid, nearly adiabatic compression).",
-    {"polytropic_exponent": 1.4, "limit_pa": LIMIT_150_PSI_PA, "atmospheric_pa": ATM_PA},
+    {"polytropic_exponent": ARRESTOR_POLYTROPIC_EXPONENT, "limit_pa": LIMIT_150_PSI_PA,
+     "atmospheric_pa": ATM_PA},
     validate=lambda p: [] if 1.0 <= p["polytropic_exponent"] <= 5.0 / 3.0 else
     [("polytropic_exponent", f"must be from 1 (isothermal) to 5/3, found "
       f"{p['polytropic_exponent']:g}")],
@@ -194,9 +196,12 @@ def gas_volume(ctx: Context, params: Mapping[str, Any]) -> Iterator[Finding]:
     """KE = sum of 1/2 rho L Q^2 / A over the pipes from the valve back to its supply (the whole
     column, conservative), for the largest single valve an arrestor protects;
     V1 = KE / (P1 [(r^((n-1)/n) - 1)/(n-1) - (1 - r^(-1/n))]), r = P2/P1, P1 the static pressure
-    at the arrestor and P2 limit_pa, both absolute (plus atmospheric_pa). Findings: a shown gas
-    volume below V1; a node where the static pressure already reaches the limit (no cushion can
-    hold the surge under it)."""
+    at the arrestor and P2 limit_pa, both absolute (plus atmospheric_pa); V1 is the gas volume at
+    that static pressure. The simulation takes the same gas: that volume at the static pressure,
+    brought to the flowing pressure at its node before the closure, then compressed with the
+    default exponent 1.4 (a profile that changes polytropic_exponent changes the sizing only).
+    Findings: a shown gas volume below V1; a node where the static pressure already reaches the
+    limit (no cushion can hold the surge under it)."""
     u = ctx.unit_system
     for r, c in _checks(ctx, "gas-short"):
         shown = ctx.screening.proposals[c.proposal].gas_volume_m3

@@ -15,6 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from knockproof.errors import SimulationError
+from knockproof.physics.gas_cushion import ARRESTOR_POLYTROPIC_EXPONENT
 from knockproof.transient.network import (
     GasCushion,
     Reservoir,
@@ -60,7 +61,7 @@ class CushionSpec:
     node: str
     gas_volume_m3: float
     gas_pressure_abs_pa: float | None = None
-    polytropic_exponent: float = 1.2
+    polytropic_exponent: float = ARRESTOR_POLYTROPIC_EXPONENT
     throat_loss_s2_per_m5: float = 1.0e3
 
 

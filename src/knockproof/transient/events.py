@@ -36,7 +36,7 @@ import numpy as np
 from knockproof import catalog
 from knockproof.errors import SimulationError
 from knockproof.physics import friction
-from knockproof.physics.constants import G
+from knockproof.physics.constants import ATM_PA, G
 from knockproof.results import Analysis, EventResult
 
 ROUND_TRIPS = 4
@@ -261,7 +261,14 @@ def build_event_network(
         )
     elevations = {n: tree.nodes[n]["elevation_m"] for n in nodes}
     outlets = [OutletSpec(node, q, tc, law) for node, q, tc, law in members]
-    cushion_specs = [CushionSpec(node, vol) for node, vol in cushions if node in nodes]
+    # the schedule states a gas volume at the static pressure at its node (absolute); the solver
+    # brings it to the flowing pressure there before the closure (physics/gas_cushion.py notes)
+    stated = {n: node_res[n].static_pressure_pa + ATM_PA for n, _ in cushions if n in nodes}
+    cushion_specs = [
+        CushionSpec(node, vol, stated[node] if stated[node] > 0.0 else None)
+        for node, vol in cushions
+        if node in nodes
+    ]
     order = sorted(nodes, key=lambda n: (dist.get(n, math.inf), n))
     vapour = _vapour(analysis, side)
     net = tree_network(

@@ -666,6 +666,11 @@ def run(
     rec_groups,
     rec_every,
     rec_out,
+    wsec,
+    wpipe,
+    wmax_first,
+    wmax_after,
+    wmin,
     gmax_first,
     gmax_after,
     gmin,
@@ -685,8 +690,12 @@ def run(
     plain junctions (groups ``0 .. n_plain-1``) come in classes starting at ``0`` and at
     ``node_classes``: see :func:`_end_nodes`, :func:`_junctions`, :func:`_fans` and
     :func:`_other_nodes`.
-    ``pipe_rank`` and ``group_rank`` give the order of the final sums. Returns (section heads,
-    arrestor gas volumes, cavity volume left).
+    ``pipe_rank`` and ``group_rank`` give the order of the final sums. ``wsec`` are watched
+    interior sections (of layout pipes ``wpipe``): their highest head before and after the first
+    cavity collapse and their lowest (not below the section's vapour head) go to ``wmax_first``,
+    ``wmax_after``, ``wmin`` (the places of nodes merged into a longer pipe,
+    :mod:`knockproof.transient.series`). Returns (section heads, arrestor gas volumes, cavity
+    volume left).
     """
     ns = len(sr)
     # storage (module docstring): C+ drifts down and C- up one place per step, so that a section
@@ -749,6 +758,13 @@ def run(
         gmax_after[gi] = -np.inf
     for r in range(len(rec_groups)):
         rec_out[0, r] = ghead0[rec_groups[r]]
+    n_watch = len(wsec)
+    for w in range(n_watch):  # the initial state: C+ + C- = 2 H at a liquid section
+        k = wsec[w]
+        h = 0.5 * (state0[k] + state0[ns + k])
+        wmax_first[w] = h
+        wmax_after[w] = -np.inf
+        wmin[w] = h
     supply_old = acc[ACC_SUPPLY]
     j = 0
     for step in range(1, n_steps + 1):
@@ -948,6 +964,22 @@ def run(
             break
         acc[ACC_SUPPLY_VOLUME] += 0.5 * dt * (supply_old + acc[ACC_SUPPLY])
         supply_old = acc[ACC_SUPPLY]
+        for w in range(n_watch):
+            # what a section sends sums to 2 H when it is liquid; with a cavity open the head is
+            # the vapour head (the two flows differ), which bounds the lowest
+            k = wsec[w]
+            p = wpipe[w]
+            h = 0.5 * (Av[k] + Bv[k])
+            hv = hv0[p] + dhv[p] * (k - off[p])
+            if cav_on and (Vc[k] > 0.0 or h < hv):
+                h = hv
+            if stats[ST_FIRST_COLLAPSE] >= 0 and stats[ST_FIRST_COLLAPSE] < step:
+                if h > wmax_after[w]:
+                    wmax_after[w] = h
+            elif h > wmax_first[w]:
+                wmax_first[w] = h
+            if h < wmin[w]:
+                wmin[w] = h
         if step % rec_every == 0:
             row = step // rec_every
             for r in range(len(rec_groups)):

@@ -33,6 +33,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from knockproof.errors import SimulationError
+from knockproof.physics.gas_cushion import ARRESTOR_POLYTROPIC_EXPONENT
 
 GRAVITY_M_PER_S2 = 9.80665
 """Standard gravity [m/s^2] (CGPM 1901)."""
@@ -116,8 +117,9 @@ class GasCushion:
     gas_pressure_abs_pa : float
         Absolute gas pressure at that state [Pa], > 0.
     polytropic_exponent : float
-        ``n``: 1.0 isothermal, 1.4 adiabatic (air); 1.2 default, a common compromise for fast surges
-        (Wylie & Streeter 1993, sec. 3.5, from memory).
+        ``n``: 1.0 isothermal, 1.4 adiabatic (air); default
+        :data:`~knockproof.physics.gas_cushion.ARRESTOR_POLYTROPIC_EXPONENT` (1.4), the exponent
+        the arrestor sizing uses (see that module for the choice).
     throat_loss_s2_per_m5 : float
         ``k`` [s^2/m^5] in the throat loss ``k*Qa*|Qa|`` [m]; default small (1e3: 1 mm of head at
         1 L/s), i.e. a short full-bore connection; a chosen default, not a published value.
@@ -126,7 +128,7 @@ class GasCushion:
     node: int
     gas_volume_m3: float
     gas_pressure_abs_pa: float
-    polytropic_exponent: float = 1.2
+    polytropic_exponent: float = ARRESTOR_POLYTROPIC_EXPONENT
     throat_loss_s2_per_m5: float = 1.0e3
 
 

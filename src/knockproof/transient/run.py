@@ -24,6 +24,30 @@ from knockproof.transient.events import EventSimulation, simulate_event
 VOLUME_TOLERANCE = 0.05
 MAX_DOUBLINGS = 8
 
+RAISE_TOLERANCE = 1e-3
+"""A with-arrestor peak above the bare one by more than this share of it counts as raised (below
+it, the difference is the size of the grid's and the Newton solver's rounding, not physics)."""
+
+RAISES_PEAK_REASON = (
+    "the arrestor's gas spring and the water column ring together: in a slow or low-velocity "
+    "closure the column is decelerated gently without it, while with it the column keeps moving "
+    "into the gas and overshoots, so the cushion's oscillation can rise above the bare line's peak"
+)
+"""Why an arrestor can raise a simulated peak, for reports (our own wording of the air-chamber
+oscillation of Wylie & Streeter, Fluid Transients in Systems, 1993, sec. 3.5)."""
+
+
+def arrestor_raises_peak(
+    bare_worst_pa: float | None, with_arrestors_worst_pa: float | None
+) -> bool | None:
+    """Whether the scheduled arrestors raise an event's simulated peak: the worst pressure with
+    them above the bare worst by more than :data:`RAISE_TOLERANCE` of it (gauge [Pa]; compare like
+    with like: both at the valve, or both the worst node of the zone). None when either is
+    missing (no arrestor simulated)."""
+    if bare_worst_pa is None or with_arrestors_worst_pa is None:
+        return None
+    return bool(with_arrestors_worst_pa > bare_worst_pa + RAISE_TOLERANCE * abs(bare_worst_pa))
+
 _STATE: dict[str, object] = {}
 
 
@@ -33,6 +57,10 @@ class ArrestorCheck:
 
     ``verified_gas_volume_m3`` is the smallest volume (within ``VOLUME_TOLERANCE``) whose simulated
     peak on ``event_id`` stays under ``limit_pa``; None when no volume up to the search cap does.
+    ``simulated_peak_pa`` is the peak with that volume (or with the largest tried).
+    ``bare_peak_pa`` is the same event's simulated peak without the arrestor, and ``raises_peak``
+    says that the volume reported raises the peak above it (:func:`arrestor_raises_peak`; why:
+    :data:`RAISES_PEAK_REASON`) - a volume is never given without saying so.
     """
 
     arrestor_id: str
@@ -41,6 +69,8 @@ class ArrestorCheck:
     verified_gas_volume_m3: float | None
     simulated_peak_pa: float | None
     limit_pa: float
+    bare_peak_pa: float | None = None
+    raises_peak: bool = False
 
 
 def _init(tree: nx.DiGraph, analysis: Analysis) -> None:
@@ -132,6 +162,9 @@ def simulate_all(
                 simulated_min_pressure_pa=b.min_pressure_pa,
                 cavity=b.cavity,
                 simulated_peak_with_arrestors_pa=p.peak_pressure_pa if p else None,
+                arrestor_raises_peak=arrestor_raises_peak(
+                    b.peak_pressure_pa, p.peak_pressure_pa if p else None
+                ),
             )
         )
     return replace(analysis, events=tuple(events)), bare, protected
@@ -161,17 +194,31 @@ def verify_arrestors(
         )
         vol = getattr(a, "gas_volume_m3", None)
         with_peak = worst.simulated_peak_with_arrestors_pa
+        bare = worst.simulated_peak_pressure_pa
         if vol and with_peak is not None and with_peak <= limit_pa:
-            checks.append(ArrestorCheck(a.id, worst.id, vol, vol, with_peak, limit_pa))  # type: ignore[attr-defined]
+            checks.append(_check(a, worst, vol, vol, with_peak, limit_pa, bare))
             continue
         checks.append(_bisect(tree, analysis, a, worst, float(vol or 1e-5), limit_pa))
     return checks
 
 
+def _check(arrestor, event, energy, verified, peak, limit_pa, bare) -> ArrestorCheck:
+    return ArrestorCheck(
+        arrestor.id, event.id, energy, verified, peak, limit_pa, bare,
+        bool(verified is not None and arrestor_raises_peak(bare, peak)),
+    )  # fmt: skip
+
+
 def _bisect(tree, analysis, arrestor, event, start, limit_pa) -> ArrestorCheck:
     def peak(vol: float) -> float:
-        return simulate_event(tree, analysis, event, [(arrestor.node, vol)]).peak_pressure_pa
+        return simulate_event(
+            tree, analysis, event, [(arrestor.node, vol)], record=False
+        ).peak_pressure_pa
 
+    energy = getattr(arrestor, "gas_volume_m3", None)
+    bare = event.simulated_peak_pressure_pa
+    if bare is None:
+        bare = simulate_event(tree, analysis, event, (), record=False).peak_pressure_pa
     lo, hi = 0.0, start
     p_hi = peak(hi)
     doublings = 0
@@ -180,20 +227,12 @@ def _bisect(tree, analysis, arrestor, event, start, limit_pa) -> ArrestorCheck:
         p_hi = peak(hi)
         doublings += 1
     if p_hi > limit_pa:
-        return ArrestorCheck(
-            arrestor.id, event.id, getattr(arrestor, "gas_volume_m3", None), None, p_hi, limit_pa
-        )
+        return _check(arrestor, event, energy, None, p_hi, limit_pa, bare)
     if lo == 0.0:
         lo = hi / 16.0
-        if peak(lo) <= limit_pa:
-            return ArrestorCheck(
-                arrestor.id,
-                event.id,
-                getattr(arrestor, "gas_volume_m3", None),
-                lo,
-                peak(lo),
-                limit_pa,
-            )
+        p_lo = peak(lo)
+        if p_lo <= limit_pa:
+            return _check(arrestor, event, energy, lo, p_lo, limit_pa, bare)
     while (hi - lo) / hi > VOLUME_TOLERANCE:
         mid = math.sqrt(lo * hi)
         p = peak(mid)
@@ -201,9 +240,7 @@ def _bisect(tree, analysis, arrestor, event, start, limit_pa) -> ArrestorCheck:
             hi, p_hi = mid, p
         else:
             lo = mid
-    return ArrestorCheck(
-        arrestor.id, event.id, getattr(arrestor, "gas_volume_m3", None), hi, p_hi, limit_pa
-    )
+    return _check(arrestor, event, energy, hi, p_hi, limit_pa, bare)
 
 
 @dataclass(frozen=True)

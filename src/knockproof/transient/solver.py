@@ -187,16 +187,64 @@ def simulate(
     record_every : int
         Keep every ``record_every``-th step in the traces.
 
+    Chains of short pipes in series are merged into longer pipes first (unless ``lump_ratio`` is 0:
+    nothing lumped, nothing merged); results are told on the given network
+    (:mod:`knockproof.transient.series`).
+
     Raises
     ------
     SimulationError
         Bad input (names the pipe or node), a grid that cannot be built, or a state that becomes
         non-finite during the run (names the pipe).
     """
+    check_network(network)
+    for n in record_nodes:
+        if not (0 <= int(n) < network.n_nodes):
+            raise SimulationError(f"record node {n} out of range 0..{network.n_nodes - 1}")
+    if lump_ratio > 0.0:
+        # chains of short pipes in series become longer pipes (knockproof.transient.series)
+        from knockproof.transient.series import expand_result, merge_series
+
+        travel = np.asarray(network.pipe_length_m, float) / np.asarray(
+            network.pipe_wave_speed_m_per_s, float
+        )
+        target = (
+            float(np.percentile(travel, percentile)) if time_step_s is None else time_step_s
+        )
+        merged = merge_series(network, target, lump_ratio, {int(n) for n in record_nodes})
+        if merged is not None:
+            reduced, how = merged
+            record = [int(how.node_new[int(n)]) for n in record_nodes]
+            result = _simulate(
+                reduced, duration_s, target, record, cavitation, max_wave_speed_adjustment,
+                percentile, lump_ratio, max_refinement, record_every, how.watch,
+            )  # fmt: skip
+            return expand_result(result, how, network, reduced)
+    return _simulate(
+        network, duration_s, time_step_s, record_nodes, cavitation, max_wave_speed_adjustment,
+        percentile, lump_ratio, max_refinement, record_every,
+    )  # fmt: skip
+
+
+def _simulate(
+    network: TransientNetwork,
+    duration_s: float,
+    time_step_s: float | None,
+    record_nodes: Sequence[int],
+    cavitation: bool,
+    max_wave_speed_adjustment: float,
+    percentile: float,
+    lump_ratio: float,
+    max_refinement: float,
+    record_every: int,
+    watch: Sequence[tuple[int, float]] = (),
+) -> TransientResult:
+    """:func:`simulate` on a checked network, no series merging; ``watch`` (pipe, distance [m]
+    from its upstream end) are places inside pipes whose head envelope goes to ``stats``
+    (``watch_max_first_head_m``, ``watch_max_after_head_m``, ``watch_min_head_m``)."""
     from knockproof.transient import kernel  # deferred: numba loads only here
 
     started = time.perf_counter()
-    check_network(network)
     if not (np.isfinite(duration_s) and duration_s > 0.0):
         raise SimulationError(
             f"duration must be a positive number of seconds; found {duration_s!r}"
@@ -229,6 +277,21 @@ def simulate(
     acc = np.zeros(4)
     acc[kernel.ACC_SUPPLY] = lay.supply0
     stats = np.zeros(8, dtype=np.int64)
+    layout_of = np.full(network.n_pipes, -1, dtype=np.int64)
+    layout_of[lay.pipe_index] = np.arange(len(lay.pipe_index))
+    watch_kept = np.array([layout_of[p] >= 0 for p, _ in watch], dtype=bool)
+    seen = [(int(layout_of[p]), p, x) for p, x in watch if layout_of[p] >= 0]
+    wpipe = np.array([i for i, _, _ in seen], dtype=np.int64)
+    wsec = np.array(
+        [
+            lay.offset[i] + int(round(lay.reaches[i] * x / float(network.pipe_length_m[p])))
+            for i, p, x in seen
+        ],
+        dtype=np.int64,
+    )
+    wmax_first = np.zeros(len(seen))
+    wmax_after = np.zeros(len(seen))
+    wmin = np.zeros(len(seen))
     setup_seconds = time.perf_counter() - started
 
     started = time.perf_counter()
@@ -247,7 +310,8 @@ def simulate(
         lay.group_arrestor, lay.arrestor_c0, lay.arrestor_n, lay.arrestor_k,
         lay.arrestor_elevation, lay.arrestor_volume0, lay.barometric_head,
         rec_groups, record_every,
-        rec_out, gmax_first, gmax_after, gmin, gcav, cav_up, cav_dn, vvol, acc, stats,
+        rec_out, wsec, wpipe, wmax_first, wmax_after, wmin,
+        gmax_first, gmax_after, gmin, gcav, cav_up, cav_dn, vvol, acc, stats,
     )  # fmt: skip
     kernel_seconds = time.perf_counter() - started
 
@@ -339,8 +403,18 @@ def simulate(
             "gas_volume_initial_m3": lay.arrestor_volume0.copy(),
             "gas_volume_final_m3": np.asarray(gas_final).copy(),
             "friction_number": friction_number,
+            # per watched place (NaN where its pipe was lumped)
+            "watch_max_first_head_m": _per_watch(watch_kept, wmax_first),
+            "watch_max_after_head_m": _per_watch(watch_kept, wmax_after),
+            "watch_min_head_m": _per_watch(watch_kept, wmin),
         },
     )
+
+
+def _per_watch(kept: np.ndarray, values: np.ndarray) -> np.ndarray:
+    out = np.full(len(kept), np.nan)
+    out[kept] = values
+    return out
 
 
 GRID_CACHE_SIZE = 64
